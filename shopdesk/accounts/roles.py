@@ -1,0 +1,78 @@
+"""The shop's three roles and the permissions each holds (see the role table in DEVELOPERS.md).
+
+Views check permissions, never group names. Data migrations call :func:`sync_roles` so the
+groups always hold exactly these permissions; add a migration that calls it again whenever a
+permission is added here.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+FRONT_DESK = "Front desk"
+TECHNICIAN = "Bench technician"
+OWNER = "Owner"
+
+_VIEW_SPECS = [
+    "specs.view_unitmodel",
+    "specs.view_chamber",
+    "specs.view_torquevalue",
+    "specs.view_oil",
+    "specs.view_servicetype",
+    "specs.view_serviceinterval",
+]
+
+ROLE_PERMISSIONS: dict[str, list[str]] = {
+    FRONT_DESK: [
+        "customers.add_customer",
+        "customers.change_customer",
+        "customers.view_customer",
+        "customers.add_unit",
+        "customers.change_unit",
+        "customers.view_unit",
+        *_VIEW_SPECS,
+        "workshop.view_workorder",
+        "workshop.check_in_workorder",
+        "workshop.hand_back_workorder",
+        "workshop.cancel_workorder",
+    ],
+    TECHNICIAN: [
+        "customers.view_customer",
+        "customers.view_unit",
+        *_VIEW_SPECS,
+        "workshop.view_workorder",
+        "workshop.move_on_bench_workorder",
+    ],
+    # The owner holds every permission of the shop's own apps and of user management.
+    OWNER: ["*"],
+}
+
+OWNER_APPS = ("auth", "customers", "specs", "stock", "workshop", "accounts", "shop")
+
+
+def sync_roles(apps: Any, schema_editor: Any = None) -> None:
+    """Create the three groups and give each exactly its permissions. Safe to run again."""
+    from django.contrib.auth.management import create_permissions
+
+    for app_config in apps.get_app_configs():
+        app_config.models_module = True
+        create_permissions(app_config, apps=apps, verbosity=0)
+        app_config.models_module = None
+
+    Group = apps.get_model("auth", "Group")
+    Permission = apps.get_model("auth", "Permission")
+    for role, names in ROLE_PERMISSIONS.items():
+        group, _ = Group.objects.get_or_create(name=role)
+        if names == ["*"]:
+            permissions = list(Permission.objects.filter(content_type__app_label__in=OWNER_APPS))
+        else:
+            permissions = []
+            for name in names:
+                app_label, codename = name.split(".")
+                permission = Permission.objects.filter(
+                    content_type__app_label=app_label, codename=codename
+                ).first()
+                # A permission of a model not migrated yet is picked up by a later sync.
+                if permission is not None:
+                    permissions.append(permission)
+        group.permissions.set(permissions)

@@ -1,0 +1,26 @@
+from django.contrib import admin
+
+from shopdesk.customers.models import Customer, Unit
+
+
+class UnitInline(admin.TabularInline):
+    model = Unit
+    extra = 0
+    fields = ["unit_model", "serial_number", "model_year", "travel_mm", "hours_per_week"]
+    show_change_link = True
+
+
+@admin.register(Customer)
+class CustomerAdmin(admin.ModelAdmin):
+    list_display = ["name", "phone", "email", "reminder_consent", "created_at"]
+    search_fields = ["name", "phone", "email"]
+    list_filter = ["reminder_consent"]
+    inlines = [UnitInline]
+
+
+@admin.register(Unit)
+class UnitAdmin(admin.ModelAdmin):
+    list_display = ["serial_number", "unit_model", "customer", "model_year"]
+    search_fields = ["serial_number", "customer__name"]
+    list_select_related = ["unit_model", "customer"]
+    raw_id_fields = ["customer"]

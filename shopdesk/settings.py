@@ -1,0 +1,208 @@
+"""ShopDesk settings: one module, configured from the environment.
+
+Every variable is optional while ``DEBUG`` is on, so that ``make run`` needs no
+set-up; with ``DEBUG`` off, ``SECRET_KEY`` must be given. A value that cannot be
+read stops start-up with a message naming the variable.
+"""
+
+from __future__ import annotations
+
+import os
+from decimal import Decimal, InvalidOperation
+from pathlib import Path
+
+import dj_database_url
+from django.core.exceptions import ImproperlyConfigured
+
+BASE_DIR = Path(__file__).resolve().parent.parent
+
+
+def env_str(name: str, default: str | None = None) -> str:
+    value = os.environ.get(name, default)
+    if value is None:
+        raise ImproperlyConfigured(f"Set the environment variable {name}.")
+    return value
+
+
+def env_bool(name: str, default: bool) -> bool:
+    raw = os.environ.get(name)
+    if raw is None or raw == "":
+        return default
+    lowered = raw.strip().lower()
+    if lowered in {"1", "true", "yes", "on"}:
+        return True
+    if lowered in {"0", "false", "no", "off"}:
+        return False
+    raise ImproperlyConfigured(f"{name} must be true or false, not {raw!r}.")
+
+
+def env_list(name: str, default: str) -> list[str]:
+    return [item.strip() for item in env_str(name, default).split(",") if item.strip()]
+
+
+def env_choice(name: str, default: str, choices: tuple[str, ...]) -> str:
+    value = env_str(name, default)
+    if value not in choices:
+        raise ImproperlyConfigured(f"{name} must be one of {', '.join(choices)}, not {value!r}.")
+    return value
+
+
+def env_decimal(name: str, default: str, *, minimum: Decimal, maximum: Decimal) -> Decimal:
+    raw = env_str(name, default)
+    try:
+        value = Decimal(raw)
+    except InvalidOperation:
+        raise ImproperlyConfigured(f"{name} must be a number, not {raw!r}.") from None
+    if not (minimum <= value <= maximum):
+        raise ImproperlyConfigured(f"{name} must be between {minimum} and {maximum}, not {raw}.")
+    return value
+
+
+DEBUG = env_bool("DEBUG", True)
+TESTING = env_bool("SHOPDESK_TESTING", False)
+
+if DEBUG:
+    # Only for a developer's own machine; refused below when DEBUG is off.
+    SECRET_KEY = env_str("SECRET_KEY", "insecure-development-key-do-not-use-in-a-shop")
+else:
+    SECRET_KEY = env_str("SECRET_KEY")
+    if len(SECRET_KEY) < 50 or SECRET_KEY.startswith("insecure"):
+        raise ImproperlyConfigured("SECRET_KEY must be a random string of at least 50 characters.")
+
+ALLOWED_HOSTS = env_list("ALLOWED_HOSTS", "127.0.0.1,localhost" if DEBUG else "")
+CSRF_TRUSTED_ORIGINS = env_list("CSRF_TRUSTED_ORIGINS", "")
+
+INSTALLED_APPS = [
+    "django.contrib.admin",
+    "django.contrib.auth",
+    "django.contrib.contenttypes",
+    "django.contrib.sessions",
+    "django.contrib.messages",
+    "whitenoise.runserver_nostatic",
+    "django.contrib.staticfiles",
+    "django.contrib.humanize",
+    "django_htmx",
+    "template_partials",
+    "simple_history",
+    "shopdesk.shop",
+    "shopdesk.accounts",
+    "shopdesk.specs",
+    "shopdesk.customers",
+    "shopdesk.stock",
+    "shopdesk.workshop",
+]
+
+MIDDLEWARE = [
+    "django.middleware.security.SecurityMiddleware",
+    "whitenoise.middleware.WhiteNoiseMiddleware",
+    "django.contrib.sessions.middleware.SessionMiddleware",
+    "django.middleware.common.CommonMiddleware",
+    "django.middleware.csrf.CsrfViewMiddleware",
+    "django.contrib.auth.middleware.AuthenticationMiddleware",
+    "django.contrib.auth.middleware.LoginRequiredMiddleware",
+    "django.contrib.messages.middleware.MessageMiddleware",
+    "django.middleware.clickjacking.XFrameOptionsMiddleware",
+    "django_htmx.middleware.HtmxMiddleware",
+    "simple_history.middleware.HistoryRequestMiddleware",
+]
+
+ROOT_URLCONF = "shopdesk.urls"
+WSGI_APPLICATION = "shopdesk.wsgi.application"
+
+TEMPLATES = [
+    {
+        "BACKEND": "django.template.backends.django.DjangoTemplates",
+        "DIRS": [BASE_DIR / "templates"],
+        "APP_DIRS": True,
+        "OPTIONS": {
+            "context_processors": [
+                "django.template.context_processors.request",
+                "django.contrib.auth.context_processors.auth",
+                "django.contrib.messages.context_processors.messages",
+                "shopdesk.shop.context_processors.shop",
+            ],
+            "builtins": ["template_partials.templatetags.partials"],
+        },
+    }
+]
+
+DATABASES = {
+    "default": dj_database_url.parse(
+        env_str("DATABASE_URL", f"sqlite:///{BASE_DIR / 'shopdesk.sqlite3'}"),
+        conn_max_age=int(env_str("DATABASE_CONN_MAX_AGE", "0")),
+    )
+}
+if DATABASES["default"]["ENGINE"] == "django.db.backends.sqlite3":
+    # Several app processes may share the file: wait for a lock rather than fail at once,
+    # and take the write lock at the start of a transaction so that reads inside it stay valid.
+    DATABASES["default"].setdefault("OPTIONS", {}).update(
+        {
+            "timeout": 20,
+            "transaction_mode": "IMMEDIATE",
+            "init_command": "PRAGMA journal_mode=WAL; PRAGMA synchronous=NORMAL;",
+        }
+    )
+
+DEFAULT_AUTO_FIELD = "django.db.models.BigAutoField"
+
+AUTH_PASSWORD_VALIDATORS = [
+    {"NAME": "django.contrib.auth.password_validation.UserAttributeSimilarityValidator"},
+    {"NAME": "django.contrib.auth.password_validation.MinimumLengthValidator", "OPTIONS": {"min_length": 12}},
+    {"NAME": "django.contrib.auth.password_validation.CommonPasswordValidator"},
+    {"NAME": "django.contrib.auth.password_validation.NumericPasswordValidator"},
+]
+
+LOGIN_URL = "accounts:sign-in"
+LOGIN_REDIRECT_URL = "shop:home"
+LOGOUT_REDIRECT_URL = "accounts:sign-in"
+
+LANGUAGE_CODE = "en-gb"
+TIME_ZONE = env_str("TIME_ZONE", "Europe/London")
+USE_I18N = True
+USE_TZ = True
+
+STATIC_URL = "static/"
+STATIC_ROOT = BASE_DIR / "staticfiles"
+STATICFILES_DIRS = [BASE_DIR / "static"]
+STORAGES = {
+    "default": {"BACKEND": "django.core.files.storage.FileSystemStorage"},
+    "staticfiles": {
+        "BACKEND": (
+            "django.contrib.staticfiles.storage.StaticFilesStorage"
+            if DEBUG or TESTING
+            else "whitenoise.storage.CompressedManifestStaticFilesStorage"
+        )
+    },
+}
+
+EMAIL_BACKEND = env_str("EMAIL_BACKEND", "django.core.mail.backends.console.EmailBackend")
+DEFAULT_FROM_EMAIL = env_str("DEFAULT_FROM_EMAIL", "workshop@shop.example")
+
+SESSION_COOKIE_AGE = 10 * 60 * 60  # a working day of idleness ends a session
+SESSION_SAVE_EVERY_REQUEST = True
+SESSION_COOKIE_HTTPONLY = True
+CSRF_COOKIE_HTTPONLY = False  # htmx reads no cookie: the token is sent from the page's <body>
+X_FRAME_OPTIONS = "DENY"
+if not DEBUG:
+    SECURE_PROXY_SSL_HEADER = ("HTTP_X_FORWARDED_PROTO", "https")
+    SECURE_SSL_REDIRECT = env_bool("SECURE_SSL_REDIRECT", True)
+    SESSION_COOKIE_SECURE = True
+    CSRF_COOKIE_SECURE = True
+    SECURE_HSTS_SECONDS = int(env_str("SECURE_HSTS_SECONDS", "31536000"))
+    SECURE_HSTS_INCLUDE_SUBDOMAINS = True
+    SECURE_HSTS_PRELOAD = env_bool("SECURE_HSTS_PRELOAD", False)
+
+LOGGING = {
+    "version": 1,
+    "disable_existing_loggers": False,
+    "handlers": {"console": {"class": "logging.StreamHandler"}},
+    "root": {"handlers": ["console"], "level": env_str("LOG_LEVEL", "INFO")},
+}
+
+# --- The shop ---------------------------------------------------------------------------------
+SHOP_NAME = env_str("SHOP_NAME", "Hollow Pine Suspension Works")
+SHOP_PRESSURE_UNIT = env_choice("SHOP_PRESSURE_UNIT", "psi", ("psi", "bar"))
+SHOP_VOLUME_UNIT = env_choice("SHOP_VOLUME_UNIT", "mL", ("mL", "fl oz"))
+SHOP_LENGTH_UNIT = env_choice("SHOP_LENGTH_UNIT", "mm", ("mm", "in"))
+SHOP_TAX_RATE = env_decimal("SHOP_TAX_RATE", "0.20", minimum=Decimal("0"), maximum=Decimal("0.5"))
+SHOP_CURRENCY = env_str("SHOP_CURRENCY", "£")

@@ -1,0 +1,29 @@
+"""Money: Decimal end to end, rounded to the cent in one place."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from decimal import ROUND_HALF_UP, Decimal
+from typing import Iterable
+
+CENT = Decimal("0.01")
+
+
+def round_money(amount: Decimal) -> Decimal:
+    """Round to the cent, halves away from zero, as a till does."""
+    return amount.quantize(CENT, rounding=ROUND_HALF_UP)
+
+
+@dataclass(frozen=True)
+class Total:
+    subtotal: Decimal
+    tax_rate: Decimal
+    tax: Decimal
+    total: Decimal
+
+
+def total_with_tax(lines: Iterable[Decimal], *, tax_rate: Decimal) -> Total:
+    """Sum the lines (each already to the cent), then add tax rounded once on the sum."""
+    subtotal = sum((Decimal(line) for line in lines), Decimal("0.00"))
+    tax = round_money(subtotal * tax_rate)
+    return Total(subtotal=round_money(subtotal), tax_rate=tax_rate, tax=tax, total=round_money(subtotal) + tax)

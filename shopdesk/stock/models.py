@@ -1,0 +1,1 @@
+"""Parts and oils in stock, and the ledger of stock movements (built with the bench's records)."""

@@ -1,0 +1,124 @@
+"""Check-in, the job page and the status board."""
+
+from __future__ import annotations
+
+from django.contrib import messages
+from django.contrib.auth.decorators import permission_required
+from django.core.exceptions import ValidationError
+from django.http import Http404, HttpRequest, HttpResponse
+from django.shortcuts import get_object_or_404, redirect, render
+from django.views.decorators.http import require_GET, require_http_methods, require_POST
+
+from shopdesk.customers.forms import SetupForm
+from shopdesk.customers.models import Unit
+from shopdesk.specs.models import ServiceType
+from shopdesk.workshop import flow, selectors, services
+from shopdesk.workshop.forms import CheckInForm, MoveForm
+from shopdesk.workshop.models import Status, WorkOrder
+
+
+def _check_in_forms(request: HttpRequest, unit: Unit) -> tuple[CheckInForm, SetupForm]:
+    data = request.POST if request.method == "POST" else None
+    initial = {name: getattr(unit, name) for name in Unit.SETUP_FIELDS}
+    return (
+        CheckInForm(data, prefix="job"),
+        SetupForm(data, prefix="arrival", unit_model=unit.unit_model, initial=initial),
+    )
+
+
+@require_http_methods(["GET", "POST"])
+@permission_required("workshop.check_in_workorder", raise_exception=True)
+def check_in(request: HttpRequest, unit_id: int) -> HttpResponse:
+    unit = get_object_or_404(Unit.objects.select_related("customer", "unit_model"), pk=unit_id)
+    form, setup_form = _check_in_forms(request, unit)
+    if request.method == "POST" and form.is_valid() and setup_form.is_valid():
+        try:
+            work_order = services.work_order_check_in(
+                unit=unit,
+                by=request.user,
+                service_types=form.cleaned_data["service_types"],
+                complaint=form.cleaned_data["complaint"],
+                came_with=form.cleaned_data["came_with"],
+                promised_on=form.cleaned_data["promised_on"],
+                arrival=setup_form.setup_values(),
+            )
+        except ValidationError as error:
+            form.add_error(None, error)
+        else:
+            messages.success(request, f"Checked in as {work_order.number}.")
+            return redirect(work_order)
+    services_chosen = form.cleaned_data.get("service_types", []) if form.is_bound and form.is_valid() else []
+    return render(
+        request,
+        "workshop/check_in.html",
+        {
+            "unit": unit,
+            "form": form,
+            "setup_form": setup_form,
+            "quote": services.quote(service_types=services_chosen),
+        },
+    )
+
+
+@require_POST
+@permission_required("workshop.check_in_workorder", raise_exception=True)
+def quote(request: HttpRequest) -> HttpResponse:
+    """The quote for the ticked services, as the front desk ticks them."""
+    ids = [value for value in request.POST.getlist("job-service_types") if value.isdigit()]
+    chosen = list(ServiceType.objects.filter(pk__in=ids, active=True))
+    return render(request, "workshop/check_in.html#quote", {"quote": services.quote(service_types=chosen)})
+
+
+@require_GET
+@permission_required("workshop.view_workorder", raise_exception=True)
+def work_order_detail(request: HttpRequest, number: str) -> HttpResponse:
+    work_order = selectors.work_order_for_page(number).first()
+    if work_order is None:
+        raise Http404(f"No job numbered {number}.")
+    return render(request, "workshop/work_order.html", _work_order_context(work_order))
+
+
+def _work_order_context(work_order: WorkOrder) -> dict[str, object]:
+    return {
+        "work_order": work_order,
+        "requested": list(work_order.services.select_related("service_type")),
+        "events": list(work_order.events.select_related("by")),
+        "moves": flow.moves_from(work_order.status),
+        "quote": services.quote(
+            service_types=[line.service_type for line in work_order.services.select_related("service_type")],
+            tax_rate=work_order.tax_rate,
+        ),
+        "chambers": list(work_order.unit.unit_model.chambers.select_related("oil")),
+        "torque_values": list(work_order.unit.unit_model.torque_values.all()),
+    }
+
+
+@require_GET
+@permission_required("workshop.view_workorder", raise_exception=True)
+def status_board(request: HttpRequest) -> HttpResponse:
+    columns = selectors.status_board()
+    template = "workshop/board.html#board" if request.htmx else "workshop/board.html"
+    return render(request, template, {"columns": columns})
+
+
+@require_POST
+@permission_required("workshop.view_workorder", raise_exception=True)
+def move(request: HttpRequest, number: str) -> HttpResponse:
+    work_order = get_object_or_404(WorkOrder, number=number)
+    form = MoveForm(request.POST)
+    if not form.is_valid():
+        messages.error(request, "Choose where the job should go.")
+    else:
+        try:
+            services.work_order_move(
+                work_order=work_order, target=form.cleaned_data["to"], by=request.user, note=form.cleaned_data["note"]
+            )
+        except services.MoveRefused as refusal:
+            messages.error(request, str(refusal))
+        else:
+            messages.success(request, f"{work_order.number} is now {Status(work_order.status).label.lower()}.")
+    if request.POST.get("from") == "board":
+        if request.htmx:
+            return render(request, "workshop/board.html#board", {"columns": selectors.status_board()})
+        return redirect("workshop:board")
+    return redirect(work_order)

@@ -1,0 +1,42 @@
+from django.contrib.auth.models import Group, Permission
+
+from shopdesk.accounts import roles
+
+
+def test_it_gives_each_group_exactly_its_permissions(db) -> None:
+    for role, names in roles.ROLE_PERMISSIONS.items():
+        group = Group.objects.get(name=role)
+        held = {f"{p.content_type.app_label}.{p.codename}" for p in group.permissions.select_related("content_type")}
+        if names == ["*"]:
+            expected = {
+                f"{p.content_type.app_label}.{p.codename}"
+                for p in Permission.objects.filter(content_type__app_label__in=roles.OWNER_APPS)
+            }
+        else:
+            expected = set(names)
+        assert held == expected, role
+
+
+def test_it_keeps_bench_records_and_stock_away_from_the_front_desk(db) -> None:
+    desk = set(roles.ROLE_PERMISSIONS[roles.FRONT_DESK])
+    assert "workshop.move_on_bench_workorder" not in desk
+    assert not any(name.startswith("specs.change_") for name in desk)
+    technician = set(roles.ROLE_PERMISSIONS[roles.TECHNICIAN])
+    assert not any(name.startswith(("specs.change_", "specs.add_")) for name in technician)
+    assert not any("delete" in name for name in technician)
+
+
+def test_it_signs_in_and_out(client, front_desk) -> None:
+    from tests.conftest import PASSWORD
+
+    response = client.post("/accounts/sign-in/", {"username": "desk", "password": PASSWORD})
+    assert response.status_code == 302
+    assert client.get("/").status_code == 200
+    client.post("/accounts/sign-out/")
+    assert client.get("/").status_code == 302
+
+
+def test_it_refuses_a_wrong_password_with_a_message(client, front_desk) -> None:
+    response = client.post("/accounts/sign-in/", {"username": "desk", "password": "not-the-password"})
+    assert response.status_code == 200
+    assert "correct username and password" in response.content.decode()

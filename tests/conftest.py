@@ -1,0 +1,132 @@
+"""Shared fixtures: one user per role, a small spec sheet, a customer with a unit."""
+
+from __future__ import annotations
+
+import os
+from decimal import Decimal
+
+import pytest
+from django.contrib.auth.models import Group, User
+from django.db import connection
+
+from shopdesk.accounts import roles
+
+PASSWORD = "correct-horse-battery-9"
+
+# Playwright's sync API runs an event loop in the test's thread; the live server and the ORM
+# in the same test need Django to allow that.
+os.environ.setdefault("DJANGO_ALLOW_ASYNC_UNSAFE", "true")
+
+
+def _user(username: str, role: str | None, **extra: object) -> User:
+    user = User.objects.create_user(
+        username=username, password=PASSWORD, first_name=username.capitalize(), **extra
+    )
+    if role:
+        user.groups.add(Group.objects.get(name=role))
+    return user
+
+
+@pytest.fixture
+def front_desk(db: None) -> User:
+    return _user("desk", roles.FRONT_DESK)
+
+
+@pytest.fixture
+def technician(db: None) -> User:
+    return _user("bench", roles.TECHNICIAN)
+
+
+@pytest.fixture
+def owner(db: None) -> User:
+    return _user("owner", roles.OWNER, is_staff=True)
+
+
+@pytest.fixture
+def role_users(front_desk: User, technician: User, owner: User) -> dict[str, User]:
+    return {"front_desk": front_desk, "technician": technician, "owner": owner}
+
+
+@pytest.fixture
+def oil(db: None):
+    from shopdesk.specs.models import Oil
+
+    return Oil.objects.create(
+        name="Test 5 wt", viscosity_40c_mm2s=16.0, viscosity_100c_mm2s=4.2, density_15c_kg_m3=865.0
+    )
+
+
+@pytest.fixture
+def air_fork_model(db: None, oil):
+    from shopdesk.specs.models import Chamber, TorqueValue, UnitModel
+
+    model = UnitModel.objects.create(
+        maker="Testmaker",
+        name="Ridge 34",
+        year_from=2022,
+        kind=UnitModel.Kind.FORK,
+        spring_kind=UnitModel.SpringKind.AIR,
+        damper_kind=UnitModel.DamperKind.IFP_SPRING,
+        travel_mm=140,
+        stanchion_diameter_mm=34,
+        air_piston_diameter_mm=32,
+        positive_volume_cc=120,
+        negative_volume_cc=90,
+        spacer_volume_cc=10,
+        max_spacers=4,
+        shaft_diameter_mm=10,
+        ifp_diameter_mm=20,
+        max_pressure_kpa=1100,
+    )
+    Chamber.objects.create(unit_model=model, name="Damper cartridge", kind="damper", sealed=True, oil=oil, volume_ml=95)
+    Chamber.objects.create(unit_model=model, name="Lower leg, left", kind="lowers", oil=oil, volume_ml=15)
+    TorqueValue.objects.create(unit_model=model, fastener="Crown pinch bolts", torque_nm=6, safety_critical=True)
+    return model
+
+
+@pytest.fixture
+def service_types(db: None):
+    from shopdesk.specs.models import ServiceType
+
+    return [
+        ServiceType.objects.create(
+            name="Lower-leg service", scope="lowers", default_interval_hours=50, default_interval_months=12,
+            price=Decimal("45.00"), labour_minutes=45, display_order=1,
+        ),
+        ServiceType.objects.create(
+            name="Damper service", scope="damper", default_interval_hours=100, default_interval_months=24,
+            price=Decimal("89.50"), labour_minutes=90, display_order=2,
+        ),
+    ]
+
+
+@pytest.fixture
+def customer(db: None):
+    from shopdesk.customers.models import Customer
+
+    return Customer.objects.create(name="Ada Marsh", phone="01632 960 412", email="ada@example.com")
+
+
+@pytest.fixture
+def unit(customer, air_fork_model):
+    from shopdesk.customers.models import Unit
+
+    return Unit.objects.create(
+        customer=customer, unit_model=air_fork_model, serial_number="RF34-0001", model_year=2023, travel_mm=140
+    )
+
+
+@pytest.fixture
+def work_order(unit, front_desk, service_types):
+    from shopdesk.workshop.services import work_order_check_in
+
+    return work_order_check_in(unit=unit, by=front_desk, service_types=service_types, complaint="Knocks on rebound.")
+
+
+def skip_unless_postgresql() -> None:
+    """Locking and concurrency tests mean nothing on SQLite, where select_for_update does nothing."""
+    if connection.vendor != "postgresql":
+        pytest.skip(
+            "needs PostgreSQL: runs in the PostgreSQL pass of `make test` "
+            "(DATABASE_URL=postgres://…, or a server at 127.0.0.1:5432)"
+        )
