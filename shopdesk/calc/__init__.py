@@ -6,4 +6,4 @@ Importable from a plain Python shell: ``from shopdesk.calc import oil``.
 from shopdesk.calc.errors import CalcInputError
 from shopdesk.calc.units import Q_, parse_quantity, ureg
 
-__all__ = ["CalcInputError", "Q_", "parse_quantity", "ureg"]
+__all__ = ["Q_", "CalcInputError", "parse_quantity", "ureg"]

@@ -18,7 +18,7 @@ import pint
 
 from shopdesk.calc.errors import CalcInputError
 
-ureg = pint.UnitRegistry(cache_folder=None)
+ureg: pint.UnitRegistry = pint.UnitRegistry(cache_folder=None)
 ureg.formatter.default_format = "~P"
 Q_ = ureg.Quantity
 Quantity = pint.Quantity
@@ -167,14 +167,12 @@ def check_number(
     suffix = f" {unit}" if unit else ""
     if not math.isfinite(number):
         raise CalcInputError(f"{name} must be a finite number, got {number}.")
-    if minimum is not None:
-        if number < minimum or (number == minimum and not allow_minimum):
-            bound = "at least" if allow_minimum else "more than"
-            raise CalcInputError(f"{name} must be {bound} {minimum:g}{suffix}, got {number:g}{suffix}.")
-    if maximum is not None:
-        if number > maximum or (number == maximum and not allow_maximum):
-            bound = "at most" if allow_maximum else "less than"
-            raise CalcInputError(f"{name} must be {bound} {maximum:g}{suffix}, got {number:g}{suffix}.")
+    if minimum is not None and (number < minimum or (number == minimum and not allow_minimum)):
+        bound = "at least" if allow_minimum else "more than"
+        raise CalcInputError(f"{name} must be {bound} {minimum:g}{suffix}, got {number:g}{suffix}.")
+    if maximum is not None and (number > maximum or (number == maximum and not allow_maximum)):
+        bound = "at most" if allow_maximum else "less than"
+        raise CalcInputError(f"{name} must be {bound} {maximum:g}{suffix}, got {number:g}{suffix}.")
     return number
 
 
