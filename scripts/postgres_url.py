@@ -9,9 +9,8 @@ import sys
 
 url = os.environ.get("TEST_DATABASE_URL") or "postgres://postgres@127.0.0.1:5432/shopdesk"
 try:
-    import psycopg
-
     import dj_database_url
+    import psycopg
 
     config = dj_database_url.parse(url)
     with psycopg.connect(

@@ -90,6 +90,7 @@ INSTALLED_APPS = [
     "shopdesk.customers",
     "shopdesk.stock",
     "shopdesk.workshop",
+    "shopdesk.calculators",
 ]
 
 MIDDLEWARE = [
@@ -206,3 +207,31 @@ SHOP_VOLUME_UNIT = env_choice("SHOP_VOLUME_UNIT", "mL", ("mL", "fl oz"))
 SHOP_LENGTH_UNIT = env_choice("SHOP_LENGTH_UNIT", "mm", ("mm", "in"))
 SHOP_TAX_RATE = env_decimal("SHOP_TAX_RATE", "0.20", minimum=Decimal("0"), maximum=Decimal("0.5"))
 SHOP_CURRENCY = env_str("SHOP_CURRENCY", "£")
+
+# The bench: the shop's temperature (for weighing oil), the thresholds the oil diagnosis uses,
+# how far a fill may stray from the spec before the technician must confirm it, and the rate
+# for extra labour. Shop settings, not physics: every shop may set its own.
+SHOP_TEMPERATURE_C = float(
+    env_decimal("SHOP_TEMPERATURE_C", "20", minimum=Decimal("-10"), maximum=Decimal("45"))
+)
+SHOP_DRAIN_OVER_SPEC_PERCENT = float(
+    env_decimal("SHOP_DRAIN_OVER_SPEC_PERCENT", "10", minimum=Decimal("1"), maximum=Decimal("100"))
+)
+SHOP_DRAIN_UNDER_SPEC_PERCENT = float(
+    env_decimal("SHOP_DRAIN_UNDER_SPEC_PERCENT", "30", minimum=Decimal("1"), maximum=Decimal("100"))
+)
+SHOP_FILL_TOLERANCE_PERCENT = float(
+    env_decimal("SHOP_FILL_TOLERANCE_PERCENT", "5", minimum=Decimal("0"), maximum=Decimal("50"))
+)
+SHOP_LABOUR_RATE = env_decimal("SHOP_LABOUR_RATE", "60.00", minimum=Decimal("0"), maximum=Decimal("1000"))
+
+# The calculators' defaults: the share of the rider's weight a fork carries seated, the sag
+# aimed for, and the lowest absolute pressure the low side of a damper piston may reach.
+# All common practice, not published values: each shop sets its own.
+SHOP_FORK_LOAD_SHARE = float(
+    env_decimal("SHOP_FORK_LOAD_SHARE", "0.35", minimum=Decimal("0.1"), maximum=Decimal("0.9"))
+)
+SHOP_FORK_SAG = float(env_decimal("SHOP_FORK_SAG", "0.20", minimum=Decimal("0.05"), maximum=Decimal("0.6")))
+SHOP_CAVITATION_THRESHOLD_KPA = float(
+    env_decimal("SHOP_CAVITATION_THRESHOLD_KPA", "30", minimum=Decimal("0"), maximum=Decimal("101"))
+)

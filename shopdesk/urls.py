@@ -11,6 +11,8 @@ urlpatterns = [
     path("", include("shopdesk.customers.urls")),
     path("", include("shopdesk.workshop.urls")),
     path("accounts/", include("shopdesk.accounts.urls")),
+    path("calc/", include("shopdesk.calculators.urls")),
+    path("stock/", include("shopdesk.stock.urls")),
     path("admin/login/", admin_sign_in, name="admin-sign-in"),
     path("admin/", admin.site.urls),
 ]

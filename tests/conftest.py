@@ -23,6 +23,11 @@ def _user(username: str, role: str | None, **extra: object) -> User:
         username=username, password=PASSWORD, first_name=username.capitalize(), **extra
     )
     if role:
+        if not Group.objects.filter(name=role).exists():
+            # A transactional test flushed the tables that the roles' data migration filled.
+            from django.apps import apps
+
+            roles.sync_roles(apps)
         user.groups.add(Group.objects.get(name=role))
     return user
 
@@ -70,7 +75,7 @@ def air_fork_model(db: None, oil):
         travel_mm=140,
         stanchion_diameter_mm=34,
         air_piston_diameter_mm=32,
-        positive_volume_cc=120,
+        positive_volume_cc=165,
         negative_volume_cc=90,
         spacer_volume_cc=10,
         max_spacers=4,
@@ -78,9 +83,13 @@ def air_fork_model(db: None, oil):
         ifp_diameter_mm=20,
         max_pressure_kpa=1100,
     )
-    Chamber.objects.create(unit_model=model, name="Damper cartridge", kind="damper", sealed=True, oil=oil, volume_ml=95)
+    Chamber.objects.create(
+        unit_model=model, name="Damper cartridge", kind="damper", sealed=True, oil=oil, volume_ml=95
+    )
     Chamber.objects.create(unit_model=model, name="Lower leg, left", kind="lowers", oil=oil, volume_ml=15)
-    TorqueValue.objects.create(unit_model=model, fastener="Crown pinch bolts", torque_nm=6, safety_critical=True)
+    TorqueValue.objects.create(
+        unit_model=model, fastener="Crown pinch bolts", torque_nm=6, safety_critical=True
+    )
     return model
 
 
@@ -90,12 +99,22 @@ def service_types(db: None):
 
     return [
         ServiceType.objects.create(
-            name="Lower-leg service", scope="lowers", default_interval_hours=50, default_interval_months=12,
-            price=Decimal("45.00"), labour_minutes=45, display_order=1,
+            name="Lower-leg service",
+            scope="lowers",
+            default_interval_hours=50,
+            default_interval_months=12,
+            price=Decimal("45.00"),
+            labour_minutes=45,
+            display_order=1,
         ),
         ServiceType.objects.create(
-            name="Damper service", scope="damper", default_interval_hours=100, default_interval_months=24,
-            price=Decimal("89.50"), labour_minutes=90, display_order=2,
+            name="Damper service",
+            scope="damper",
+            default_interval_hours=100,
+            default_interval_months=24,
+            price=Decimal("89.50"),
+            labour_minutes=90,
+            display_order=2,
         ),
     ]
 
@@ -112,7 +131,11 @@ def unit(customer, air_fork_model):
     from shopdesk.customers.models import Unit
 
     return Unit.objects.create(
-        customer=customer, unit_model=air_fork_model, serial_number="RF34-0001", model_year=2023, travel_mm=140
+        customer=customer,
+        unit_model=air_fork_model,
+        serial_number="RF34-0001",
+        model_year=2023,
+        travel_mm=140,
     )
 
 
@@ -120,7 +143,9 @@ def unit(customer, air_fork_model):
 def work_order(unit, front_desk, service_types):
     from shopdesk.workshop.services import work_order_check_in
 
-    return work_order_check_in(unit=unit, by=front_desk, service_types=service_types, complaint="Knocks on rebound.")
+    return work_order_check_in(
+        unit=unit, by=front_desk, service_types=service_types, complaint="Knocks on rebound."
+    )
 
 
 def skip_unless_postgresql() -> None:
@@ -130,3 +155,50 @@ def skip_unless_postgresql() -> None:
             "needs PostgreSQL: runs in the PostgreSQL pass of `make test` "
             "(DATABASE_URL=postgres://…, or a server at 127.0.0.1:5432)"
         )
+
+
+@pytest.fixture
+def oil_part(db: None, oil, owner):
+    from shopdesk.stock.models import Part
+    from shopdesk.stock.services import stock_receive
+
+    part = Part.objects.create(
+        part_number="OIL-5WT",
+        name="Test 5 wt oil",
+        kind=Part.Kind.OIL,
+        unit_of_measure=Part.UnitOfMeasure.ML,
+        oil=oil,
+        reorder_level=Decimal("500"),
+        cost=Decimal("0.0100"),
+        price=Decimal("0.0300"),
+    )
+    stock_receive(part=part, quantity=Decimal("2000"), by=owner, lot_code="L24-117")
+    return part
+
+
+def finish_bench_work(work_order, technician, oil_part) -> None:
+    """Record everything a job needs before it may be ready for pickup (used by flow tests)."""
+    from shopdesk.workshop import services
+    from shopdesk.workshop.models import Status
+
+    if work_order.status == Status.CHECKED_IN:
+        services.work_order_move(work_order=work_order, target=Status.ON_THE_BENCH, by=technician)
+    for chamber in services.required_chambers(work_order):
+        services.oil_record_save(
+            work_order=work_order,
+            chamber=chamber,
+            by=technician,
+            values={
+                "drained_ml": chamber.volume_ml,
+                "filled_ml": chamber.volume_ml,
+                "oil_part": oil_part,
+                "condition": "dark",
+            },
+        )
+    if work_order.unit.unit_model.is_air:
+        services.spring_record_save(
+            work_order=work_order, stage="after", by=technician, values={"positive_pressure_kpa": 580.0}
+        )
+    services.labour_add(work_order=work_order, technician=technician, minutes=75, by=technician)
+    for check in work_order.final_checks.all():
+        services.final_check_set(check=check, done=True, by=technician)

@@ -32,6 +32,14 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         "customers.view_unit",
         *_VIEW_SPECS,
         "workshop.view_workorder",
+        *[
+            f"workshop.view_{name}"
+            for name in ("oilrecord", "springrecord", "partused", "labourentry", "finalcheck")
+        ],
+        "workshop.view_servicerecord",
+        # Stock: what is on hand and its price, to answer a customer; not the ledger, never a change.
+        "stock.view_part",
+        "stock.view_stocklot",
         "workshop.check_in_workorder",
         "workshop.hand_back_workorder",
         "workshop.cancel_workorder",
@@ -42,6 +50,17 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         *_VIEW_SPECS,
         "workshop.view_workorder",
         "workshop.move_on_bench_workorder",
+        "workshop.view_servicerecord",
+        # The bench's records: add and change (a wrong one is voided, never deleted).
+        *[
+            f"workshop.{action}_{name}"
+            for name in ("oilrecord", "springrecord", "partused", "labourentry", "finalcheck")
+            for action in ("add", "change", "view")
+        ],
+        # Stock: seen and used on jobs (through the bench's records), never adjusted or priced.
+        "stock.view_part",
+        "stock.view_stocklot",
+        "stock.view_stockmovement",
     ],
     # The owner holds every permission of the shop's own apps and of user management.
     OWNER: ["*"],

@@ -8,7 +8,9 @@ urlpatterns = [
     path(
         "sign-in/",
         login_not_required(
-            auth_views.LoginView.as_view(template_name="accounts/sign_in.html", redirect_authenticated_user=True)
+            auth_views.LoginView.as_view(
+                template_name="accounts/sign_in.html", redirect_authenticated_user=True
+            )
         ),
         name="sign-in",
     ),

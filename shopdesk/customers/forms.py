@@ -33,7 +33,9 @@ class CustomerForm(forms.ModelForm):
     def clean(self) -> dict[str, Any]:
         cleaned = super().clean()
         if not cleaned.get("phone") and not cleaned.get("email") and not self.errors:
-            raise forms.ValidationError("Give a phone number or an email, so the shop can reach the customer.")
+            raise forms.ValidationError(
+                "Give a phone number or an email, so the shop can reach the customer."
+            )
         return cleaned
 
 
@@ -90,7 +92,15 @@ class UnitForm(forms.ModelForm):
 
     class Meta:
         model = Unit
-        fields = ["unit_model", "serial_number", "model_year", "travel_mm", "hours_per_week", "purchased_on", "notes"]
+        fields = [
+            "unit_model",
+            "serial_number",
+            "model_year",
+            "travel_mm",
+            "hours_per_week",
+            "purchased_on",
+            "notes",
+        ]
         widgets = {
             "purchased_on": forms.DateInput(attrs={"type": "date"}),
             "notes": forms.Textarea(attrs={"rows": 3}),
@@ -129,6 +139,8 @@ class UnitForm(forms.ModelForm):
         if cleaned.get("travel_mm") is None and "travel_mm" not in self.errors:
             cleaned["travel_mm"] = unit_model.travel_mm
         year = cleaned.get("model_year")
-        if year and (year < unit_model.year_from - 1 or (unit_model.year_to and year > unit_model.year_to + 1)):
+        if year and (
+            year < unit_model.year_from - 1 or (unit_model.year_to and year > unit_model.year_to + 1)
+        ):
             self.add_error("model_year", f"This spec sheet covers {unit_model}; check the year or the model.")
         return cleaned

@@ -52,7 +52,10 @@ class SetupFields(models.Model):
     )
     spacer_count = models.PositiveSmallIntegerField(null=True, blank=True, validators=[MaxValueValidator(20)])
     coil_rate_n_mm = models.FloatField(
-        "coil spring rate (N/mm)", null=True, blank=True, validators=[MinValueValidator(1), MaxValueValidator(400)]
+        "coil spring rate (N/mm)",
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(1), MaxValueValidator(400)],
     )
     rebound_clicks = models.PositiveSmallIntegerField(
         null=True, blank=True, validators=[MaxValueValidator(60)], help_text="Counted from fully closed."
@@ -84,10 +87,15 @@ class Unit(SetupFields):
     customer = models.ForeignKey(Customer, on_delete=models.PROTECT, related_name="units")
     unit_model = models.ForeignKey(UnitModel, on_delete=models.PROTECT, related_name="units")
     serial_number = models.CharField(max_length=60)
-    model_year = models.PositiveSmallIntegerField(validators=[MinValueValidator(1980), MaxValueValidator(2100)])
+    model_year = models.PositiveSmallIntegerField(
+        validators=[MinValueValidator(1980), MaxValueValidator(2100)]
+    )
     travel_mm = models.FloatField(validators=[MinValueValidator(10), MaxValueValidator(250)])
     hours_per_week = models.DecimalField(
-        "riding hours per week", max_digits=4, decimal_places=1, default=Decimal("4.0"),
+        "riding hours per week",
+        max_digits=4,
+        decimal_places=1,
+        default=Decimal("4.0"),
         validators=[MinValueValidator(Decimal("0")), MaxValueValidator(Decimal("60"))],
         help_text="The rider's usual week, to estimate hours since the last service.",
     )

@@ -2,9 +2,9 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass
 from decimal import ROUND_HALF_UP, Decimal
-from typing import Iterable
 
 CENT = Decimal("0.01")
 
@@ -26,4 +26,6 @@ def total_with_tax(lines: Iterable[Decimal], *, tax_rate: Decimal) -> Total:
     """Sum the lines (each already to the cent), then add tax rounded once on the sum."""
     subtotal = sum((Decimal(line) for line in lines), Decimal("0.00"))
     tax = round_money(subtotal * tax_rate)
-    return Total(subtotal=round_money(subtotal), tax_rate=tax_rate, tax=tax, total=round_money(subtotal) + tax)
+    return Total(
+        subtotal=round_money(subtotal), tax_rate=tax_rate, tax=tax, total=round_money(subtotal) + tax
+    )

@@ -16,7 +16,7 @@ from django import forms
 from django.conf import settings
 from django.core.exceptions import ValidationError
 
-from shopdesk.calc import CalcInputError, Q_, parse_quantity
+from shopdesk.calc import Q_, CalcInputError, parse_quantity
 
 
 @dataclass(frozen=True)
@@ -43,7 +43,7 @@ PRESSURE = Kind("[pressure]", "kPa", "SHOP_PRESSURE_UNIT", "psi", {"psi": 1, "ba
 VOLUME = Kind("[volume]", "mL", "SHOP_VOLUME_UNIT", "mL", {"mL": 1, "fl oz": 2})
 LENGTH = Kind("[length]", "mm", "SHOP_LENGTH_UNIT", "mm", {"mm": 1, "in": 3})
 MASS = Kind("[mass]", "g", None, "g", {"g": 1})
-TORQUE = Kind("[length] * [mass] / [time] ** 2", "N*m", None, "N*m", {"N*m": 1})
+TORQUE = Kind("[length] ** 2 * [mass] / [time] ** 2", "N*m", None, "N*m", {"N*m": 1})
 SPRING_RATE = Kind("[mass] / [time] ** 2", "N/mm", None, "N/mm", {"N/mm": 1})
 FORCE = Kind("[length] * [mass] / [time] ** 2", "N", None, "N", {"N": 0})
 
@@ -123,7 +123,9 @@ class QuantityField(forms.Field):
         if not text:
             return None
         if len(text) > 40:
-            raise ValidationError("Too long for a value: type a number and a unit, e.g. “85 psi”.", code="invalid")
+            raise ValidationError(
+                "Too long for a value: type a number and a unit, e.g. “85 psi”.", code="invalid"
+            )
         display_unit = _PINT_NAMES.get(self.kind.display_unit, self.kind.display_unit)
         try:
             quantity = parse_quantity(text, default_unit=display_unit, dimension=self.kind.dimension)

@@ -20,7 +20,16 @@ class ServiceIntervalInline(admin.TabularInline):
 
 @admin.register(UnitModel)
 class UnitModelAdmin(admin.ModelAdmin):
-    list_display = ["maker", "name", "year_from", "year_to", "kind", "spring_kind", "damper_kind", "travel_mm"]
+    list_display = [
+        "maker",
+        "name",
+        "year_from",
+        "year_to",
+        "kind",
+        "spring_kind",
+        "damper_kind",
+        "travel_mm",
+    ]
     list_filter = ["kind", "spring_kind", "damper_kind", "maker"]
     search_fields = ["maker", "name"]
     inlines = [ChamberInline, TorqueValueInline, ServiceIntervalInline]
@@ -35,6 +44,12 @@ class OilAdmin(admin.ModelAdmin):
 @admin.register(ServiceType)
 class ServiceTypeAdmin(admin.ModelAdmin):
     list_display = [
-        "name", "scope", "price", "labour_minutes", "default_interval_hours", "default_interval_months", "active",
+        "name",
+        "scope",
+        "price",
+        "labour_minutes",
+        "default_interval_hours",
+        "default_interval_months",
+        "active",
     ]
     list_editable = ["active"]

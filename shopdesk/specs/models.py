@@ -16,7 +16,9 @@ from django.db.models import Q
 class Oil(models.Model):
     """A suspension oil as its data sheet gives it."""
 
-    name = models.CharField(max_length=120, unique=True, help_text="As the shop calls it, e.g. “Fork oil 5W”.")
+    name = models.CharField(
+        max_length=120, unique=True, help_text="As the shop calls it, e.g. “Fork oil 5W”."
+    )
     maker = models.CharField(max_length=80, blank=True)
     viscosity_40c_mm2s = models.FloatField(
         "kinematic viscosity at 40 °C (mm²/s)", validators=[MinValueValidator(1.0), MaxValueValidator(1000.0)]
@@ -94,7 +96,9 @@ class UnitModel(models.Model):
 
     maker = models.CharField(max_length=80)
     name = models.CharField(max_length=120)
-    year_from = models.PositiveSmallIntegerField(validators=[MinValueValidator(1980), MaxValueValidator(2100)])
+    year_from = models.PositiveSmallIntegerField(
+        validators=[MinValueValidator(1980), MaxValueValidator(2100)]
+    )
     year_to = models.PositiveSmallIntegerField(
         null=True, blank=True, validators=[MinValueValidator(1980), MaxValueValidator(2100)]
     )
@@ -105,28 +109,40 @@ class UnitModel(models.Model):
     # Geometry for the calculators. A rear shock's travel is its stroke.
     travel_mm = models.FloatField(validators=[MinValueValidator(10), MaxValueValidator(250)])
     stanchion_diameter_mm = models.FloatField(
-        null=True, blank=True, validators=[MinValueValidator(20), MaxValueValidator(45)],
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(20), MaxValueValidator(45)],
         help_text="Forks: the upper tube's outer diameter.",
     )
     air_piston_diameter_mm = models.FloatField(
-        null=True, blank=True, validators=[MinValueValidator(10), MaxValueValidator(80)],
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(10), MaxValueValidator(80)],
         help_text="Air springs: the diameter the positive chamber's pressure acts on.",
     )
     positive_volume_cc = models.FloatField(
-        null=True, blank=True, validators=[MinValueValidator(1), MaxValueValidator(2000)],
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(1), MaxValueValidator(2000)],
         help_text="Air springs: positive chamber at top-out, without volume spacers.",
     )
     negative_volume_cc = models.FloatField(
-        null=True, blank=True, validators=[MinValueValidator(0), MaxValueValidator(2000)],
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(0), MaxValueValidator(2000)],
         help_text="Air springs: negative chamber at top-out; empty or zero when there is none.",
     )
     spacer_volume_cc = models.FloatField(
-        null=True, blank=True, validators=[MinValueValidator(0.1), MaxValueValidator(100)],
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(0.1), MaxValueValidator(100)],
         help_text="Volume of one volume spacer for this model.",
     )
     max_spacers = models.PositiveSmallIntegerField(null=True, blank=True, validators=[MaxValueValidator(20)])
     shaft_diameter_mm = models.FloatField(
-        null=True, blank=True, validators=[MinValueValidator(3), MaxValueValidator(25)],
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(3), MaxValueValidator(25)],
         help_text="Damper shaft entering the sealed cartridge or shock body.",
     )
     damper_piston_diameter_mm = models.FloatField(
@@ -136,7 +152,9 @@ class UnitModel(models.Model):
         null=True, blank=True, validators=[MinValueValidator(8), MaxValueValidator(80)]
     )
     max_pressure_kpa = models.FloatField(
-        "maximum pressure (kPa, gauge)", null=True, blank=True,
+        "maximum pressure (kPa, gauge)",
+        null=True,
+        blank=True,
         validators=[MinValueValidator(50), MaxValueValidator(4000)],
         help_text="From the maker's service data. Never exceed it.",
     )
@@ -164,7 +182,11 @@ class UnitModel(models.Model):
 
     @property
     def is_sealed(self) -> bool:
-        return self.damper_kind in {self.DamperKind.BLADDER, self.DamperKind.IFP_SPRING, self.DamperKind.IFP_GAS}
+        return self.damper_kind in {
+            self.DamperKind.BLADDER,
+            self.DamperKind.IFP_SPRING,
+            self.DamperKind.IFP_GAS,
+        }
 
     def clean(self) -> None:
         errors: dict[str, str] = {}
@@ -200,7 +222,9 @@ class Chamber(models.Model):
         null=True, blank=True, validators=[MinValueValidator(0.5), MaxValueValidator(1000)]
     )
     level_mm = models.FloatField(
-        null=True, blank=True, validators=[MinValueValidator(10), MaxValueValidator(400)],
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(10), MaxValueValidator(400)],
         help_text="Open bath: oil level from the top of the stanchion, fork fully compressed, spring out.",
     )
     display_order = models.PositiveSmallIntegerField(default=0)

@@ -23,6 +23,14 @@ class WorkOrderAdmin(admin.ModelAdmin):
     list_filter = ["status"]
     search_fields = ["number", "customer__name", "unit__serial_number"]
     list_select_related = ["customer", "unit__unit_model"]
-    readonly_fields = ["number", "status", "customer", "unit", "checked_in_at", "checked_in_by", "status_changed_at"]
+    readonly_fields = [
+        "number",
+        "status",
+        "customer",
+        "unit",
+        "checked_in_at",
+        "checked_in_by",
+        "status_changed_at",
+    ]
     raw_id_fields = ["assigned_to"]
     inlines = [RequestedServiceInline, WorkOrderEventInline]

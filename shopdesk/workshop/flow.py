@@ -33,15 +33,16 @@ MOVES: tuple[Move, ...] = (
     Move(Status.FINAL_CHECK, Status.ON_THE_BENCH, "Back to the bench", (BENCH,)),
     Move(Status.FINAL_CHECK, Status.READY_FOR_PICKUP, "Ready for pickup", (BENCH,)),
     Move(Status.READY_FOR_PICKUP, Status.COLLECTED, "Collected", (HAND_BACK,)),
-) + tuple(
-    Move(source, Status.CANCELLED, "Cancel", (CANCEL,))
-    for source in (
-        Status.CHECKED_IN,
-        Status.WAITING_FOR_PARTS,
-        Status.ON_THE_BENCH,
-        Status.FINAL_CHECK,
-        Status.READY_FOR_PICKUP,
-    )
+    *tuple(
+        Move(source, Status.CANCELLED, "Cancel", (CANCEL,))
+        for source in (
+            Status.CHECKED_IN,
+            Status.WAITING_FOR_PARTS,
+            Status.ON_THE_BENCH,
+            Status.FINAL_CHECK,
+            Status.READY_FOR_PICKUP,
+        )
+    ),
 )
 
 _BY_PAIR = {(move.source, move.target): move for move in MOVES}

@@ -17,7 +17,9 @@ class CheckInForm(forms.Form):
         error_messages={"required": "Tick at least one service."},
     )
     complaint = forms.CharField(
-        required=False, max_length=4000, widget=forms.Textarea(attrs={"rows": 4}),
+        required=False,
+        max_length=4000,
+        widget=forms.Textarea(attrs={"rows": 4}),
         help_text="What the customer says, in their words.",
     )
     came_with = forms.CharField(required=False, max_length=200, label="Came with the unit")

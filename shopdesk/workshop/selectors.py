@@ -5,12 +5,16 @@ from __future__ import annotations
 import datetime
 from dataclasses import dataclass, field
 
-from django.db.models import Count, F, QuerySet, Window
+from django.db.models import Case, Count, F, Max, QuerySet, Value, When, Window
 from django.db.models.functions import RowNumber
 from django.utils import timezone
 
+from shopdesk.calc import schedule
+from shopdesk.calc.schedule import DueStatus
+from shopdesk.customers.models import Unit
+from shopdesk.specs.models import ServiceType
 from shopdesk.workshop import flow
-from shopdesk.workshop.models import OPEN_STATUSES, Status, WorkOrder
+from shopdesk.workshop.models import OPEN_STATUSES, ServiceRecord, Status, WorkOrder
 
 BOARD_LIMIT_PER_STATUS = 100
 
@@ -58,4 +62,111 @@ def status_board(*, today: datetime.date | None = None) -> list[BoardColumn]:
 def work_order_for_page(number: str) -> QuerySet[WorkOrder]:
     return WorkOrder.objects.filter(number=number).select_related(
         "customer", "unit__unit_model", "checked_in_by", "assigned_to", "arrival"
+    )
+
+
+@dataclass(frozen=True)
+class DueDate:
+    service_type: ServiceType
+    last_done_on: datetime.date | None
+    counted_from: datetime.date
+    interval_hours: int | None
+    interval_months: int | None
+    next_due_on: datetime.date
+    status: DueStatus
+
+
+def service_intervals(unit: Unit) -> list[tuple[ServiceType, int | None, int | None]]:
+    """The services that fall due on this unit, each with the interval that applies.
+
+    The spec sheet's own interval wins; otherwise the service type's default. A coil unit has no
+    air-spring service; a service with no interval at all (a revalve) never falls due.
+    """
+    own = {
+        interval.service_type_id: interval
+        for interval in unit.unit_model.intervals.select_related("service_type")
+    }
+    result = []
+    for service in ServiceType.objects.filter(active=True).order_by("display_order", "name"):
+        if service.scope == ServiceType.Scope.AIR_SPRING and not unit.unit_model.is_air:
+            continue
+        interval = own.get(service.pk)
+        hours = interval.interval_hours if interval else service.default_interval_hours
+        months = interval.interval_months if interval else service.default_interval_months
+        if interval and hours is None and months is None:
+            hours, months = service.default_interval_hours, service.default_interval_months
+        if hours is None and months is None:
+            continue
+        result.append((service, hours, months))
+    return result
+
+
+def unit_start_date(unit: Unit) -> datetime.date:
+    """Where due dates count from when the shop has never serviced the unit."""
+    if unit.purchased_on:
+        return unit.purchased_on
+    first = unit.work_orders.order_by("checked_in_at").values_list("checked_in_at", flat=True).first()
+    return timezone.localdate(first or unit.created_at)
+
+
+def unit_due_dates(unit: Unit, *, today: datetime.date | None = None, soon_days: int = 30) -> list[DueDate]:
+    """Per service type, the last service, the next due date and its status (shopdesk.calc.schedule)."""
+    today = today or timezone.localdate()
+    last_done = {
+        row["service_type"]: row["last"]
+        for row in ServiceRecord.objects.filter(unit=unit)
+        .values("service_type")
+        .annotate(last=Max("done_on"))
+    }
+    start = None
+    due_dates = []
+    for service, hours, months in service_intervals(unit):
+        last = last_done.get(service.pk)
+        if last is None and start is None:
+            start = unit_start_date(unit)
+        counted_from = last or start
+        weekly = float(unit.hours_per_week) if unit.hours_per_week else None
+        if hours is not None and months is None and not weekly:
+            continue  # an hours-only interval means nothing for a unit that is not ridden
+        due = schedule.next_due_on(
+            last_service_on=counted_from, interval_hours=hours, interval_months=months, hours_per_week=weekly
+        )
+        due_dates.append(
+            DueDate(
+                service_type=service,
+                last_done_on=last,
+                counted_from=counted_from,
+                interval_hours=hours,
+                interval_months=months,
+                next_due_on=due,
+                status=schedule.due_status(due_on=due, today=today, soon_days=soon_days),
+            )
+        )
+    return due_dates
+
+
+BENCH_STATUSES = (Status.CHECKED_IN, Status.WAITING_FOR_PARTS, Status.ON_THE_BENCH, Status.FINAL_CHECK)
+
+
+def bench_queue(*, user: object, today: datetime.date | None = None, limit: int = 200) -> list[WorkOrder]:
+    """Jobs waiting and on the bench: the user's own first, then by promised date (none last), oldest in."""
+    today = today or timezone.localdate()
+    mine = Case(When(assigned_to=user, then=Value(0)), default=Value(1))
+    jobs = list(
+        open_work_orders()
+        .filter(status__in=BENCH_STATUSES)
+        .annotate(mine_first=mine)
+        .order_by("mine_first", F("promised_on").asc(nulls_last=True), "checked_in_at")[:limit]
+    )
+    for job in jobs:
+        job.is_late = job.promised_on is not None and job.promised_on < today
+        job.is_mine = job.assigned_to_id == getattr(user, "pk", None)
+    return jobs
+
+
+def unit_service_history(unit: Unit, *, limit: int = 100) -> list[ServiceRecord]:
+    return list(
+        ServiceRecord.objects.filter(unit=unit)
+        .select_related("service_type", "as_part_of", "work_order")
+        .order_by("-done_on", "id")[:limit]
     )

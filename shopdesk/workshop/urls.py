@@ -1,6 +1,6 @@
 from django.urls import path
 
-from shopdesk.workshop import views
+from shopdesk.workshop import bench_views, views
 
 app_name = "workshop"
 
@@ -8,6 +8,14 @@ urlpatterns = [
     path("units/<int:unit_id>/check-in/", views.check_in, name="check-in"),
     path("check-in/quote/", views.quote, name="quote"),
     path("board/", views.status_board, name="board"),
-    path("jobs/<str:number>/", views.work_order_detail, name="work-order"),
+    path("bench/", bench_views.bench_queue, name="bench"),
+    path("jobs/<str:number>/", bench_views.work_order_detail, name="work-order"),
     path("jobs/<str:number>/move/", views.move, name="move"),
+    path("jobs/<str:number>/take/", bench_views.take, name="take"),
+    path("jobs/<str:number>/oil/<int:chamber_id>/", bench_views.oil_save, name="oil"),
+    path("jobs/<str:number>/spring/<str:stage>/", bench_views.spring_save, name="spring"),
+    path("jobs/<str:number>/parts/", bench_views.part_add, name="part"),
+    path("jobs/<str:number>/labour/", bench_views.labour_save, name="labour"),
+    path("jobs/<str:number>/checks/<int:check_id>/", bench_views.check_set, name="check"),
+    path("jobs/<str:number>/void/<str:kind>/<int:record_id>/", bench_views.record_void, name="void"),
 ]

@@ -5,14 +5,14 @@ from __future__ import annotations
 from django.contrib import messages
 from django.contrib.auth.decorators import permission_required
 from django.core.exceptions import ValidationError
-from django.http import Http404, HttpRequest, HttpResponse
+from django.http import HttpRequest, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_GET, require_http_methods, require_POST
 
 from shopdesk.customers.forms import SetupForm
 from shopdesk.customers.models import Unit
 from shopdesk.specs.models import ServiceType
-from shopdesk.workshop import flow, selectors, services
+from shopdesk.workshop import selectors, services
 from shopdesk.workshop.forms import CheckInForm, MoveForm
 from shopdesk.workshop.models import Status, WorkOrder
 
@@ -71,30 +71,6 @@ def quote(request: HttpRequest) -> HttpResponse:
 
 @require_GET
 @permission_required("workshop.view_workorder", raise_exception=True)
-def work_order_detail(request: HttpRequest, number: str) -> HttpResponse:
-    work_order = selectors.work_order_for_page(number).first()
-    if work_order is None:
-        raise Http404(f"No job numbered {number}.")
-    return render(request, "workshop/work_order.html", _work_order_context(work_order))
-
-
-def _work_order_context(work_order: WorkOrder) -> dict[str, object]:
-    return {
-        "work_order": work_order,
-        "requested": list(work_order.services.select_related("service_type")),
-        "events": list(work_order.events.select_related("by")),
-        "moves": flow.moves_from(work_order.status),
-        "quote": services.quote(
-            service_types=[line.service_type for line in work_order.services.select_related("service_type")],
-            tax_rate=work_order.tax_rate,
-        ),
-        "chambers": list(work_order.unit.unit_model.chambers.select_related("oil")),
-        "torque_values": list(work_order.unit.unit_model.torque_values.all()),
-    }
-
-
-@require_GET
-@permission_required("workshop.view_workorder", raise_exception=True)
 def status_board(request: HttpRequest) -> HttpResponse:
     columns = selectors.status_board()
     template = "workshop/board.html#board" if request.htmx else "workshop/board.html"
@@ -111,12 +87,17 @@ def move(request: HttpRequest, number: str) -> HttpResponse:
     else:
         try:
             services.work_order_move(
-                work_order=work_order, target=form.cleaned_data["to"], by=request.user, note=form.cleaned_data["note"]
+                work_order=work_order,
+                target=form.cleaned_data["to"],
+                by=request.user,
+                note=form.cleaned_data["note"],
             )
         except services.MoveRefused as refusal:
             messages.error(request, str(refusal))
         else:
-            messages.success(request, f"{work_order.number} is now {Status(work_order.status).label.lower()}.")
+            messages.success(
+                request, f"{work_order.number} is now {Status(work_order.status).label.lower()}."
+            )
     if request.POST.get("from") == "board":
         if request.htmx:
             return render(request, "workshop/board.html#board", {"columns": selectors.status_board()})

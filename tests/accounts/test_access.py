@@ -45,7 +45,9 @@ def test_it_sends_anonymous_requests_to_sign_in(client, pattern: str, name: str 
         response = method(url)
         assert response.status_code == 302, f"{method.__name__.upper()} {url} answered {response.status_code}"
         location = response["Location"]
-        assert location.startswith(reverse("accounts:sign-in")) or location.startswith("/admin/login/"), location
+        assert location.startswith(reverse("accounts:sign-in")) or location.startswith("/admin/login/"), (
+            location
+        )
 
 
 def test_it_walks_a_reasonable_number_of_patterns() -> None:

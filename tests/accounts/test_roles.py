@@ -6,7 +6,10 @@ from shopdesk.accounts import roles
 def test_it_gives_each_group_exactly_its_permissions(db) -> None:
     for role, names in roles.ROLE_PERMISSIONS.items():
         group = Group.objects.get(name=role)
-        held = {f"{p.content_type.app_label}.{p.codename}" for p in group.permissions.select_related("content_type")}
+        held = {
+            f"{p.content_type.app_label}.{p.codename}"
+            for p in group.permissions.select_related("content_type")
+        }
         if names == ["*"]:
             expected = {
                 f"{p.content_type.app_label}.{p.codename}"

@@ -10,7 +10,12 @@ def test_it_adds_a_customer_and_stamps_consent(client, front_desk) -> None:
     client.force_login(front_desk)
     response = client.post(
         reverse("customers:customer-new"),
-        {"name": "  Tomas   Quill ", "phone": "01632 960 777", "email": "tq@example.org", "reminder_consent": "on"},
+        {
+            "name": "  Tomas   Quill ",
+            "phone": "01632 960 777",
+            "email": "tq@example.org",
+            "reminder_consent": "on",
+        },
     )
     customer = Customer.objects.get()
     assert response.status_code == 302
@@ -120,7 +125,9 @@ def test_it_refuses_a_serial_already_on_another_unit_of_the_model(
     url = reverse("customers:unit-new", kwargs={"customer_id": other.pk})
     response = client.post(url, _unit_data(air_fork_model, **{"unit-serial_number": "rf34-0001"}))
     assert response.status_code == 200
-    assert "already on a Testmaker Ridge 34 of Ada Marsh" in " ".join(response.context["form"].errors["serial_number"])
+    assert "already on a Testmaker Ridge 34 of Ada Marsh" in " ".join(
+        response.context["form"].errors["serial_number"]
+    )
     assert Unit.objects.count() == 1
 
 
@@ -128,7 +135,10 @@ def test_it_keeps_the_saved_unit_when_an_edit_is_refused(client, front_desk, uni
     client.force_login(front_desk)
     url = reverse("customers:unit-edit", kwargs={"unit_id": unit.pk})
     response = client.post(
-        url, _unit_data(air_fork_model, **{"unit-serial_number": "NEW-1", "setup-positive_pressure_kpa": "999 bar"})
+        url,
+        _unit_data(
+            air_fork_model, **{"unit-serial_number": "NEW-1", "setup-positive_pressure_kpa": "999 bar"}
+        ),
     )
     assert response.status_code == 200
     unit.refresh_from_db()

@@ -29,9 +29,12 @@ def test_it_says_when_nothing_matches(client, front_desk, customer) -> None:
     assert "Nothing matches" in body
 
 
-def test_it_searches_in_two_queries_however_many_customers(client, front_desk, django_assert_max_num_queries) -> None:
+def test_it_searches_in_two_queries_however_many_customers(
+    client, front_desk, django_assert_max_num_queries
+) -> None:
     Customer.objects.bulk_create(
-        Customer(name=f"Rider {n}", phone=f"01632 96{n:04d}", phone_digits=f"0163296{n:04d}") for n in range(60)
+        Customer(name=f"Rider {n}", phone=f"01632 96{n:04d}", phone_digits=f"0163296{n:04d}")
+        for n in range(60)
     )
     client.force_login(front_desk)
     # session, user, user permissions, group permissions, customers, units,

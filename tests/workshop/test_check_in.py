@@ -37,7 +37,10 @@ def test_it_checks_a_unit_in_with_services_and_settings(client, front_desk, unit
     assert work_order.checked_in_by == front_desk
     assert work_order.arrival.positive_pressure_kpa == pytest.approx(590.0)  # 5.9 bar, 1 bar = 100 kPa
     assert work_order.arrival.rebound_clicks == 9
-    assert sorted(RequestedService.objects.values_list("price", flat=True)) == [Decimal("45.00"), Decimal("89.50")]
+    assert sorted(RequestedService.objects.values_list("price", flat=True)) == [
+        Decimal("45.00"),
+        Decimal("89.50"),
+    ]
     event = WorkOrderEvent.objects.get()
     assert event.by == front_desk and event.to_status == Status.CHECKED_IN
 
@@ -57,7 +60,9 @@ def test_it_refuses_bad_check_in_input_at_the_field(
     client, front_desk, unit, service_types, overrides, field, words
 ) -> None:
     client.force_login(front_desk)
-    response = client.post(reverse("workshop:check-in", kwargs={"unit_id": unit.pk}), _data(service_types, **overrides))
+    response = client.post(
+        reverse("workshop:check-in", kwargs={"unit_id": unit.pk}), _data(service_types, **overrides)
+    )
     assert response.status_code == 200
     errors = {**response.context["form"].errors, **response.context["setup_form"].errors}
     assert words in " ".join(errors[field])
@@ -71,7 +76,9 @@ def test_it_numbers_jobs_in_sequence_within_a_year(unit, front_desk, service_typ
         for _ in range(3)
     ]
     next_year = timezone.make_aware(datetime.datetime(2032, 1, 2, 10, 0))
-    numbers.append(work_order_check_in(unit=unit, by=front_desk, service_types=service_types, now=next_year).number)
+    numbers.append(
+        work_order_check_in(unit=unit, by=front_desk, service_types=service_types, now=next_year).number
+    )
     assert numbers == ["2031-0001", "2031-0002", "2031-0003", "2032-0001"]
 
 
@@ -80,7 +87,9 @@ def test_it_gives_a_number_back_when_a_check_in_fails(unit, front_desk, service_
 
     first = work_order_check_in(unit=unit, by=front_desk, service_types=service_types)
     with pytest.raises(ValidationError):
-        work_order_check_in(unit=unit, by=front_desk, service_types=service_types, arrival={"rebound_clicks": 500})
+        work_order_check_in(
+            unit=unit, by=front_desk, service_types=service_types, arrival={"rebound_clicks": 500}
+        )
     second = work_order_check_in(unit=unit, by=front_desk, service_types=service_types)
     assert int(second.number[-4:]) == int(first.number[-4:]) + 1
 
@@ -88,7 +97,11 @@ def test_it_gives_a_number_back_when_a_check_in_fails(unit, front_desk, service_
 def test_it_quotes_with_tax_rounded_once(service_types) -> None:
     # 45.00 + 89.50 = 134.50; 20 % of it = 26.90 exactly
     result = quote(service_types=service_types, tax_rate=Decimal("0.20"))
-    assert (result.subtotal, result.tax, result.total) == (Decimal("134.50"), Decimal("26.90"), Decimal("161.40"))
+    assert (result.subtotal, result.tax, result.total) == (
+        Decimal("134.50"),
+        Decimal("26.90"),
+        Decimal("161.40"),
+    )
     # 8.875 % of 134.50 = 11.936875, rounded half up once to 11.94
     assert quote(service_types=service_types, tax_rate=Decimal("0.08875")).tax == Decimal("11.94")
 
@@ -97,7 +110,9 @@ def test_it_updates_the_quote_as_services_are_ticked(client, front_desk, service
     settings.SHOP_TAX_RATE = Decimal("0.20")
     client.force_login(front_desk)
     response = client.post(
-        reverse("workshop:quote"), {"job-service_types": [service_types[1].pk]}, headers={"HX-Request": "true"}
+        reverse("workshop:quote"),
+        {"job-service_types": [service_types[1].pk]},
+        headers={"HX-Request": "true"},
     )
     body = response.content.decode()
     assert "£89.50" in body and "£17.90" in body and "£107.40" in body

@@ -11,7 +11,11 @@ from shopdesk.workshop.models import OPEN_STATUSES, Status, WorkOrder, WorkOrder
 from shopdesk.workshop.services import MoveRefused, work_order_check_in, work_order_move
 
 
-def test_it_moves_a_job_along_the_whole_flow_and_stamps_each_move(work_order, technician, front_desk) -> None:
+def test_it_moves_a_job_along_the_whole_flow_and_stamps_each_move(
+    work_order, technician, front_desk, oil_part
+) -> None:
+    from tests.conftest import finish_bench_work
+
     path = [
         (Status.ON_THE_BENCH, technician),
         (Status.WAITING_FOR_PARTS, technician),
@@ -21,6 +25,8 @@ def test_it_moves_a_job_along_the_whole_flow_and_stamps_each_move(work_order, te
         (Status.COLLECTED, front_desk),
     ]
     for target, user in path:
+        if target == Status.FINAL_CHECK:
+            finish_bench_work(work_order, technician, oil_part)
         work_order_move(work_order=work_order, target=target, by=user)
     work_order.refresh_from_db()
     assert work_order.status == Status.COLLECTED
@@ -28,7 +34,9 @@ def test_it_moves_a_job_along_the_whole_flow_and_stamps_each_move(work_order, te
     assert moves == [(target.value, user.username) for target, user in path]
 
 
-@pytest.mark.parametrize("target", [Status.READY_FOR_PICKUP, Status.COLLECTED, Status.FINAL_CHECK, "nonsense"])
+@pytest.mark.parametrize(
+    "target", [Status.READY_FOR_PICKUP, Status.COLLECTED, Status.FINAL_CHECK, "nonsense"]
+)
 def test_it_refuses_a_move_the_flow_does_not_allow(work_order, owner, target) -> None:
     with pytest.raises(MoveRefused, match="cannot move"):
         work_order_move(work_order=work_order, target=target, by=owner)
@@ -37,8 +45,11 @@ def test_it_refuses_a_move_the_flow_does_not_allow(work_order, owner, target) ->
     assert not WorkOrderEvent.objects.filter(kind="status").exists()
 
 
-def test_it_allows_cancelling_before_collection_only(work_order, owner) -> None:
-    for target in (Status.ON_THE_BENCH, Status.FINAL_CHECK, Status.READY_FOR_PICKUP, Status.COLLECTED):
+def test_it_allows_cancelling_before_collection_only(work_order, owner, oil_part) -> None:
+    from tests.conftest import finish_bench_work
+
+    finish_bench_work(work_order, owner, oil_part)
+    for target in (Status.FINAL_CHECK, Status.READY_FOR_PICKUP, Status.COLLECTED):
         work_order_move(work_order=work_order, target=target, by=owner)
     with pytest.raises(MoveRefused):
         work_order_move(work_order=work_order, target=Status.CANCELLED, by=owner)
@@ -53,7 +64,9 @@ def test_every_open_status_can_be_cancelled_and_nothing_leaves_a_closed_one() ->
 def test_the_board_refuses_a_disallowed_move_with_a_message(client, owner, work_order) -> None:
     client.force_login(owner)
     response = client.post(
-        reverse("workshop:move", kwargs={"number": work_order.number}), {"to": "collected", "from": "board"}, follow=True
+        reverse("workshop:move", kwargs={"number": work_order.number}),
+        {"to": "collected", "from": "board"},
+        follow=True,
     )
     assert "cannot move to “collected”" in response.content.decode()
     work_order.refresh_from_db()

@@ -56,14 +56,20 @@ class WorkOrder(models.Model):
     )
     promised_on = models.DateField(null=True, blank=True)
     tax_rate = models.DecimalField(
-        max_digits=5, decimal_places=4, validators=[MinValueValidator(Decimal("0")), MaxValueValidator(Decimal("0.5"))]
+        max_digits=5,
+        decimal_places=4,
+        validators=[MinValueValidator(Decimal("0")), MaxValueValidator(Decimal("0.5"))],
     )
     checked_in_at = models.DateTimeField()
     checked_in_by = models.ForeignKey(
         settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="work_orders_checked_in"
     )
     assigned_to = models.ForeignKey(
-        settings.AUTH_USER_MODEL, on_delete=models.PROTECT, null=True, blank=True, related_name="work_orders_assigned"
+        settings.AUTH_USER_MODEL,
+        on_delete=models.PROTECT,
+        null=True,
+        blank=True,
+        related_name="work_orders_assigned",
     )
     status_changed_at = models.DateTimeField()
 

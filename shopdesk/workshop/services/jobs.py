@@ -24,10 +24,12 @@ from shopdesk.workshop.models import (
     ArrivalSettings,
     NumberSequence,
     RequestedService,
+    ServiceRecord,
     Status,
     WorkOrder,
     WorkOrderEvent,
 )
+from shopdesk.workshop.services.bench import final_checks_create, missing_before_ready, service_history_write
 
 
 class MoveRefused(Exception):
@@ -110,18 +112,8 @@ def work_order_check_in(
             to_status=Status.CHECKED_IN,
             message="Checked in for " + ", ".join(service.name for service in services) + ".",
         )
+        final_checks_create(work_order=work_order)
     return work_order
-
-
-def missing_before_ready(work_order: WorkOrder) -> list[str]:
-    """What must still be recorded before the job may be ready for pickup, in plain words.
-
-    The bench records (oil, spring, checks) add their own requirements here.
-    """
-    missing: list[str] = []
-    if not work_order.services.exists():
-        missing.append("No service is on the job.")
-    return missing
 
 
 def work_order_move(
@@ -154,6 +146,11 @@ def work_order_move(
             if missing:
                 raise MoveRefused("Not ready for pickup yet: " + " ".join(missing))
         previous = locked.status
+        if move.target == Status.READY_FOR_PICKUP:
+            # The work is done: it enters the unit's service history and drives its next due dates.
+            service_history_write(work_order=locked, done_on=timezone.localdate(now))
+        if move.target == Status.CANCELLED:
+            ServiceRecord.objects.filter(work_order=locked).delete()
         locked.status = move.target
         locked.status_changed_at = now
         locked.save(update_fields=["status", "status_changed_at"])
@@ -168,4 +165,33 @@ def work_order_move(
         )
     work_order.status = locked.status
     work_order.status_changed_at = locked.status_changed_at
+    return work_order
+
+
+def work_order_take(
+    *, work_order: WorkOrder, by: AbstractBaseUser, now: datetime.datetime | None = None
+) -> WorkOrder:
+    """A technician takes a job: it is assigned to them and, if it was waiting, goes on the bench."""
+    if not by.has_perm(flow.BENCH):
+        raise PermissionDenied("Only bench technicians take jobs.")
+    now = now or timezone.now()
+    with transaction.atomic():
+        locked = WorkOrder.objects.select_for_update().get(pk=work_order.pk)
+        if not locked.is_open or locked.status == Status.READY_FOR_PICKUP:
+            raise MoveRefused(
+                f"{locked.number} is {locked.get_status_display().lower()}: there is nothing to take."
+            )
+        if locked.assigned_to_id != by.pk:
+            locked.assigned_to = by
+            locked.save(update_fields=["assigned_to"])
+            WorkOrderEvent.objects.create(
+                work_order=locked,
+                at=now,
+                by=by,
+                kind=WorkOrderEvent.Kind.ASSIGNED,
+                message=f"Taken by {by.get_full_name() or by.get_username()}.",
+            )
+        if locked.status == Status.CHECKED_IN:
+            work_order_move(work_order=locked, target=Status.ON_THE_BENCH, by=by, now=now)
+    work_order.refresh_from_db()
     return work_order
