@@ -18,7 +18,8 @@ BASE_DIR = Path(__file__).resolve().parent.parent
 
 
 def env_str(name: str, default: str | None = None) -> str:
-    value = os.environ.get(name, default)
+    # An empty variable counts as unset, so that `DATABASE_URL= make test` takes the default.
+    value = os.environ.get(name) or default
     if value is None:
         raise ImproperlyConfigured(f"Set the environment variable {name}.")
     return value

@@ -11,9 +11,12 @@ table of L and H values for 2-70 mm²/s, which this library does not carry.
 
 from __future__ import annotations
 
+import bisect
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
+from functools import lru_cache
+from pathlib import Path
 from typing import Any
 
 from shopdesk.calc.errors import CalcInputError
@@ -410,3 +413,49 @@ def level_for_volume(
             f"{LONGEST_LENGTH:g} mm: check bore_diameter and volume."
         )
     return Q_(level, "mm")
+
+
+# --- Viscosity index (ASTM D2270) -------------------------------------------------------------
+
+
+@lru_cache(maxsize=1)
+def _viscosity_index_table() -> tuple[tuple[float, ...], tuple[float, ...], tuple[float, ...]]:
+    rows = []
+    with open(Path(__file__).with_name("data") / "viscosity_index_l_h.csv", encoding="utf-8") as table:
+        for line in table:
+            if line.startswith(("#", "nu100")) or not line.strip():
+                continue
+            rows.append(tuple(float(cell) for cell in line.split(",")))
+    nus, lows, highs = zip(*rows, strict=True)
+    return nus, lows, highs
+
+
+def viscosity_index(*, nu40: Quantity, nu100: Quantity) -> float:
+    """Viscosity index of an oil from its kinematic viscosities at 40 °C and 100 °C (mm²/s).
+
+    ASTM D2270 (ISO 2909): L and H from the standard's Table 1 for ν100 of 2–70 mm²/s,
+    interpolated linearly (the table's own steps), or its formulas above 70 mm²/s;
+    VI = (L − ν40)/(L − H)·100 while ν40 > H, else the procedure B form
+    ((10^N − 1)/0.00715 + 100 with N = (log H − log ν40)/log ν100). Not defined below 2 mm²/s.
+    """
+    thick, thin = _check_viscosity_pair(nu40, nu100)
+    if thin < 2.0:
+        raise CalcInputError(
+            f"nu100 must be at least 2 mm²/s for a viscosity index (ASTM D2270), got {thin:g} mm²/s."
+        )
+    if thin <= 70.0:
+        nus, lows, highs = _viscosity_index_table()
+        position = bisect.bisect_left(nus, thin)
+        if nus[position] == thin:
+            low, high = lows[position], highs[position]
+        else:
+            share = (thin - nus[position - 1]) / (nus[position] - nus[position - 1])
+            low = lows[position - 1] + share * (lows[position] - lows[position - 1])
+            high = highs[position - 1] + share * (highs[position] - highs[position - 1])
+    else:
+        low = (0.8353 * thin + 14.67) * thin - 216.0
+        high = (0.1684 * thin + 11.85) * thin - 97.0
+    if thick > high:
+        return (low - thick) / (low - high) * 100.0
+    exponent = (math.log(high) - math.log(thick)) / math.log(thin)
+    return (10**exponent - 1.0) / 0.00715 + 100.0

@@ -248,6 +248,11 @@ class ViscosityForm(CalculatorForm):
                 ),
             )
         )
+        if nu100 >= 2.0:
+            index = oil_calc.viscosity_index(nu40=at_40, nu100=at_100)
+            outcome.readings.append(
+                Reading("Viscosity index", f"{index:.0f}", detail="ASTM D2270: higher thins less as it warms")
+            )
         if oil is not None:
             outcome.notes.append(f"{oil.name}: {nu40:g} mm²/s at 40 °C, {nu100:g} mm²/s at 100 °C.")
         return outcome

@@ -70,7 +70,7 @@ def test_it_fills_what_the_per_row_rules_would_have() -> None:
         assert NumberSequence.objects.get(year=year).last_number == last
     # One or two services, one check-in event and the settings on arrival per job.
     per_job = work_orders.annotate(
-        lines=Count("services", distinct=True), events=Count("events", distinct=True)
+        lines=Count("services", distinct=True), timeline=Count("events", distinct=True)
     )
     assert {job.lines for job in per_job} <= {1, 2}
     assert {job.timeline for job in per_job} == {1}
