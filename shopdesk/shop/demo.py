@@ -105,6 +105,7 @@ def demo_shop_load(
         oils = _oils_load(document["oils"])
         service_types = _service_types_load(document["service_types"])
         unit_models = _unit_models_load(document["unit_models"], oils=oils, service_types=service_types)
+        _stock_load(document.get("stock", []), oils=oils, by=users[roles.OWNER])
         units = _customers_load(document["customers"], unit_models=unit_models, now=now)
         work_orders = _work_orders_load(
             document["work_orders"], units=units, service_types=service_types, users=users, now=now
@@ -117,6 +118,38 @@ def demo_shop_load(
         "work orders": len(work_orders),
     }
     return DemoResult(loaded=True, users=demo_users, counts=counts)
+
+
+# --- Stock ----------------------------------------------------------------------------------
+
+
+def _stock_load(entries: Sequence[Mapping[str, Any]], *, oils: Mapping[str, Oil], by: User) -> dict[str, Any]:
+    """The shop's parts and oils, each received into stock through the ledger."""
+    from decimal import Decimal
+
+    from shopdesk.stock.models import Part
+    from shopdesk.stock.services import stock_receive
+
+    parts = {}
+    for entry in entries:
+        part = Part(
+            part_number=entry["part_number"],
+            name=entry["name"],
+            kind=entry["kind"],
+            unit_of_measure=entry["unit_of_measure"],
+            oil=_named(oils, entry["oil"], "oil") if entry.get("oil") else None,
+            reorder_level=Decimal(entry["reorder_level"]),
+            cost=Decimal(entry["cost"]),
+            price=Decimal(entry["price"]),
+        )
+        part.full_clean()
+        part.save()
+        for receipt in entry.get("received", []):
+            stock_receive(
+                part=part, quantity=Decimal(receipt["quantity"]), by=by, lot_code=receipt.get("lot_code", "")
+            )
+        parts[part.part_number] = part
+    return parts
 
 
 # --- Users ------------------------------------------------------------------------------------
@@ -436,6 +469,7 @@ def _bench_work_record(
                 "drained_ml": drained.get(chamber.name, usual),
                 "condition": conditions.get(chamber.name, "clean"),
                 "filled_ml": spec,
+                "oil_part": _oil_part_for(chamber),
             },
             by=technician,
             now=at,
@@ -462,6 +496,15 @@ def _bench_work_record(
         note=bench.get("note", ""),
         now=at,
     )
+
+
+def _oil_part_for(chamber: Any) -> Any:
+    """The stock bottle of the chamber's spec oil, so that the fill draws the ledger down."""
+    from shopdesk.stock.models import Part
+
+    if chamber.oil_id is None:
+        return None
+    return Part.objects.filter(kind=Part.Kind.OIL, oil_id=chamber.oil_id).order_by("id").first()
 
 
 def _final_checks_tick(work_order: WorkOrder, *, by: User, at: datetime.datetime) -> None:

@@ -80,7 +80,7 @@ def service_intervals(unit: Unit) -> list[tuple[ServiceType, int | None, int | N
     """The services that fall due on this unit, each with the interval that applies.
 
     The spec sheet's own interval wins; otherwise the service type's default. A coil unit has no
-    air-spring service; a service with no interval at all (a revalve) never falls due.
+    air-spring service and a rear shock no lower-leg service; a service with no interval at all (a revalve) never falls due.
     """
     own = {
         interval.service_type_id: interval
@@ -90,6 +90,8 @@ def service_intervals(unit: Unit) -> list[tuple[ServiceType, int | None, int | N
     for service in ServiceType.objects.filter(active=True).order_by("display_order", "name"):
         if service.scope == ServiceType.Scope.AIR_SPRING and not unit.unit_model.is_air:
             continue
+        if service.scope == ServiceType.Scope.LOWERS and unit.unit_model.kind != unit.unit_model.Kind.FORK:
+            continue  # a rear shock has no lower legs
         interval = own.get(service.pk)
         hours = interval.interval_hours if interval else service.default_interval_hours
         months = interval.interval_months if interval else service.default_interval_months

@@ -464,6 +464,8 @@ def service_history_write(*, work_order: WorkOrder, done_on: datetime.date) -> l
             if service.scope not in have:
                 if service.scope == ServiceType.Scope.AIR_SPRING and not unit.unit_model.is_air:
                     continue
+                if service.scope == ServiceType.Scope.LOWERS and unit.unit_model.kind != UnitModel.Kind.FORK:
+                    continue  # a rear shock has no lower legs
                 covered.append((service, full))
     records = []
     for service, part_of in covered:
