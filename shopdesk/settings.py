@@ -92,6 +92,7 @@ INSTALLED_APPS = [
     "shopdesk.stock",
     "shopdesk.workshop",
     "shopdesk.calculators",
+    "shopdesk.owner",
 ]
 
 MIDDLEWARE = [

@@ -66,7 +66,7 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
     OWNER: ["*"],
 }
 
-OWNER_APPS = ("auth", "customers", "specs", "stock", "workshop", "accounts", "shop")
+OWNER_APPS = ("auth", "customers", "specs", "stock", "workshop", "accounts", "shop", "owner")
 
 
 def sync_roles(apps: Any, schema_editor: Any = None) -> None:

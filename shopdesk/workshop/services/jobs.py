@@ -17,6 +17,7 @@ from django.db import transaction
 from django.utils import timezone
 
 from shopdesk.customers.models import Unit
+from shopdesk.owner.services import due_refresh
 from shopdesk.shop.money import Total, total_with_tax
 from shopdesk.specs.models import ServiceType
 from shopdesk.workshop import flow
@@ -151,6 +152,8 @@ def work_order_move(
             service_history_write(work_order=locked, done_on=timezone.localdate(now))
         if move.target == Status.CANCELLED:
             ServiceRecord.objects.filter(work_order=locked).delete()
+        if move.target in (Status.READY_FOR_PICKUP, Status.CANCELLED):
+            due_refresh(unit=locked.unit)  # the owner's due table follows the history
         locked.status = move.target
         locked.status_changed_at = now
         locked.save(update_fields=["status", "status_changed_at"])
