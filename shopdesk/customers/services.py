@@ -11,6 +11,7 @@ from django.utils import timezone
 
 from shopdesk.customers.forms import CustomerForm, UnitForm
 from shopdesk.customers.models import Customer, Unit
+from shopdesk.owner.services import due_refresh
 
 
 def customer_save(*, form: CustomerForm, by: AbstractBaseUser | AnonymousUser | None = None) -> Customer:
@@ -37,4 +38,5 @@ def unit_save(*, form: UnitForm, setup: Mapping[str, Any], customer: Customer) -
             setattr(unit, name, value)
         unit.full_clean()
         unit.save()
+        due_refresh(unit=unit)  # a new unit, model or rider's week moves its due dates
     return unit
