@@ -92,6 +92,7 @@ INSTALLED_APPS = [
     "shopdesk.stock",
     "shopdesk.workshop",
     "shopdesk.calculators",
+    "shopdesk.documents",
     "shopdesk.owner",
 ]
 
