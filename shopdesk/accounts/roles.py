@@ -20,6 +20,7 @@ _VIEW_SPECS = [
     "specs.view_oil",
     "specs.view_servicetype",
     "specs.view_serviceinterval",
+    "specs.view_stackpreset",
 ]
 
 ROLE_PERMISSIONS: dict[str, list[str]] = {
@@ -34,7 +35,14 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         "workshop.view_workorder",
         *[
             f"workshop.view_{name}"
-            for name in ("oilrecord", "springrecord", "partused", "labourentry", "finalcheck")
+            for name in (
+                "oilrecord",
+                "springrecord",
+                "partused",
+                "labourentry",
+                "finalcheck",
+                "shimstackrecord",
+            )
         ],
         "workshop.view_servicerecord",
         # Stock: what is on hand and its price, to answer a customer; not the ledger, never a change.
@@ -54,13 +62,22 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         # The bench's records: add and change (a wrong one is voided, never deleted).
         *[
             f"workshop.{action}_{name}"
-            for name in ("oilrecord", "springrecord", "partused", "labourentry", "finalcheck")
+            for name in (
+                "oilrecord",
+                "springrecord",
+                "partused",
+                "labourentry",
+                "finalcheck",
+                "shimstackrecord",
+            )
             for action in ("add", "change", "view")
         ],
         # Stock: seen and used on jobs (through the bench's records), never adjusted or priced.
         "stock.view_part",
         "stock.view_stocklot",
         "stock.view_stockmovement",
+        # The stack library: a technician saves a stack under a name; only the owner changes one.
+        "specs.add_stackpreset",
     ],
     # The owner holds every permission of the shop's own apps and of user management.
     OWNER: ["*"],

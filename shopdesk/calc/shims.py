@@ -375,6 +375,19 @@ class ShimStack:
         load_n = check_load(load, name="load")
         return Q_(self._lift_mm(load_n), "mm")
 
+    def load_for_lift(self, lift: Quantity) -> Quantity:
+        """Load on the face shim's edge (N, preload included) that lifts it by ``lift`` (0–10 mm).
+
+        The inverse of :meth:`lift`; zero lift gives the preload.
+        """
+        lift_mm = check_quantity(
+            lift, name="lift", dimension="[length]", unit="mm", minimum=0.0, maximum=10.0, allow_minimum=True
+        )
+        index = bisect.bisect_right([segment.start_lift for segment in self._segments], lift_mm) - 1
+        segment = self._segments[max(index, 0)]
+        load = segment.start_load + (lift_mm - segment.start_lift) * segment.stiffness
+        return Q_(self._preload_n + load, "N")
+
     def stiffness_at(self, load: Quantity) -> Quantity:
         """Stiffness (N/mm) of the stage in force at ``load`` (a force, 0–100 kN, preload included).
 

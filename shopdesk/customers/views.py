@@ -95,7 +95,7 @@ def unit_new(request: HttpRequest, customer_id: int) -> HttpResponse:
 @permission_required("customers.view_unit", raise_exception=True)
 def unit_detail(request: HttpRequest, unit_id: int) -> HttpResponse:
     unit = get_object_or_404(Unit.objects.select_related("customer", "unit_model"), pk=unit_id)
-    from shopdesk.workshop.selectors import unit_due_dates, unit_service_history
+    from shopdesk.workshop.selectors import unit_due_dates, unit_revalves, unit_service_history
 
     work_orders = unit.work_orders.order_by("-checked_in_at")[:20]
     return render(
@@ -106,6 +106,7 @@ def unit_detail(request: HttpRequest, unit_id: int) -> HttpResponse:
             "work_orders": work_orders,
             "due_dates": unit_due_dates(unit),
             "history": unit_service_history(unit),
+            "revalves": unit_revalves(unit),
         },
     )
 

@@ -59,7 +59,23 @@ def air_spring_plot(
     id_prefix: str = "plot",
     size_in: tuple[float, float] = (6.4, 3.6),
 ) -> str:
-    """Force against travel as an SVG string.
+    """Force against travel as an SVG string (:func:`line_plot` with a spring's axes)."""
+    return line_plot(
+        curves, marks, x_label=x_label, y_label=y_label, title=title, id_prefix=id_prefix, size_in=size_in
+    )
+
+
+def line_plot(
+    curves: Sequence[Curve],
+    marks: Sequence[Mark] = (),
+    *,
+    x_label: str,
+    y_label: str,
+    title: str,
+    id_prefix: str = "plot",
+    size_in: tuple[float, float] = (6.4, 3.6),
+) -> str:
+    """Curves of one quantity against another, from x = 0, as an SVG string.
 
     ``curves`` lists ``(label, positions_mm, forces_N, style)``; ``style`` names one of
     :data:`STYLES` or is a mapping of matplotlib line properties. ``marks`` lists

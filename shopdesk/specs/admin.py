@@ -1,6 +1,14 @@
 from django.contrib import admin
 
-from shopdesk.specs.models import Chamber, Oil, ServiceInterval, ServiceType, TorqueValue, UnitModel
+from shopdesk.specs.models import (
+    Chamber,
+    Oil,
+    ServiceInterval,
+    ServiceType,
+    StackPreset,
+    TorqueValue,
+    UnitModel,
+)
 
 
 class ChamberInline(admin.TabularInline):
@@ -53,3 +61,10 @@ class ServiceTypeAdmin(admin.ModelAdmin):
         "active",
     ]
     list_editable = ["active"]
+
+
+@admin.register(StackPreset)
+class StackPresetAdmin(admin.ModelAdmin):
+    list_display = ["unit_model", "valve", "name", "clamp_mm", "created_by", "created_at"]
+    list_filter = ["valve", "unit_model"]
+    search_fields = ["name", "unit_model__maker", "unit_model__name"]

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 from decimal import Decimal
 
+from django.conf import settings
 from django.core.exceptions import ValidationError
 from django.core.validators import MaxValueValidator, MinValueValidator
 from django.db import models
@@ -280,3 +281,130 @@ class ServiceInterval(models.Model):
 
     def __str__(self) -> str:
         return f"{self.unit_model} · {self.service_type}"
+
+
+# --- Shim stacks --------------------------------------------------------------------------------
+
+
+class Valve(models.TextChoices):
+    """Where a shim stack sits in a damper."""
+
+    COMPRESSION_BASE = "compression_base", "Compression base valve"
+    COMPRESSION_PISTON = "compression_piston", "Compression stack on the piston (mid-valve)"
+    REBOUND = "rebound", "Rebound stack on the piston"
+
+
+def _check_shim_lines(value: object) -> None:
+    """The stored lines of a stack: a list of {"od": mm, "thickness": mm, "count": n}."""
+    if not isinstance(value, list) or not value:
+        raise ValidationError("A stack needs at least one line of shims.")
+    for number, line in enumerate(value, start=1):
+        if not isinstance(line, dict) or set(line) != {"od", "thickness", "count"}:
+            raise ValidationError(f"Line {number} must give od, thickness and count.")
+
+
+class StackFields(models.Model):
+    """One shim stack and the valve under it, as the technician measures them, in mm and N.
+
+    The lines run from the piston face outward; ``crossover_after_line`` is how many lines sit in
+    front of the crossover ring (the face shims). Port geometry and the bleed are what the damping
+    estimate needs; the piston and shaft come from the spec sheet unless typed here.
+    """
+
+    valve = models.CharField(max_length=20, choices=Valve.choices)
+    shims = models.JSONField(validators=[_check_shim_lines])
+    clamp_mm = models.FloatField(
+        "clamp diameter (mm)", validators=[MinValueValidator(1), MaxValueValidator(200)]
+    )
+    crossover_od_mm = models.FloatField(
+        "crossover OD (mm)", null=True, blank=True, validators=[MinValueValidator(1), MaxValueValidator(200)]
+    )
+    crossover_thickness_mm = models.FloatField(
+        "crossover thickness (mm)",
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(0.05), MaxValueValidator(0.5)],
+    )
+    crossover_after_line = models.PositiveSmallIntegerField(
+        "face lines in front of the crossover", null=True, blank=True, validators=[MinValueValidator(1)]
+    )
+    preload_n = models.FloatField("preload (N)", default=0.0, validators=[MinValueValidator(0)])
+    floating_rate_n_mm = models.FloatField(
+        "floating stack spring rate (N/mm)",
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(0.01), MaxValueValidator(1.0e6)],
+    )
+    piston_diameter_mm = models.FloatField(
+        null=True, blank=True, validators=[MinValueValidator(5), MaxValueValidator(200)]
+    )
+    port_area_mm2 = models.FloatField(
+        "port area (mm²)",
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(0.1), MaxValueValidator(10000)],
+    )
+    port_radius_mm = models.FloatField(
+        "port outer radius (mm)",
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(0.5), MaxValueValidator(100)],
+    )
+    bleed_mm = models.FloatField(
+        "bleed diameter (mm)", null=True, blank=True, validators=[MinValueValidator(0), MaxValueValidator(20)]
+    )
+
+    class Meta:
+        abstract = True
+
+    STACK_FIELDS = (
+        "shims",
+        "clamp_mm",
+        "crossover_od_mm",
+        "crossover_thickness_mm",
+        "crossover_after_line",
+        "preload_n",
+        "floating_rate_n_mm",
+        "piston_diameter_mm",
+        "port_area_mm2",
+        "port_radius_mm",
+        "bleed_mm",
+    )
+
+    def stack_values(self) -> dict[str, object]:
+        return {name: getattr(self, name) for name in self.STACK_FIELDS}
+
+    def lines_text(self) -> str:
+        """The stack in the bench's shorthand: "3 × 24 × 0.15, 1 × 22 × 0.10 / clamp 10"."""
+        lines = ", ".join(f"{line['count']} × {line['od']:g} × {line['thickness']:g}" for line in self.shims)
+        return f"{lines} / clamp {self.clamp_mm:g} mm"
+
+
+class StackPreset(StackFields):
+    """A named stack of the shop's library for one unit model: its baseline, a rider type."""
+
+    unit_model = models.ForeignKey(UnitModel, on_delete=models.CASCADE, related_name="stack_presets")
+    name = models.CharField(max_length=80, help_text="E.g. “Baseline” or “Heavy rider, park”.")
+    notes = models.CharField(max_length=300, blank=True)
+    created_by = models.ForeignKey(
+        settings.AUTH_USER_MODEL,
+        on_delete=models.PROTECT,
+        null=True,
+        blank=True,
+        related_name="+",
+        editable=False,
+    )
+    created_at = models.DateTimeField(auto_now_add=True)
+
+    class Meta:
+        ordering = ["unit_model", "valve", "name"]
+        constraints = [
+            models.UniqueConstraint(
+                fields=["unit_model", "valve", "name"],
+                name="one_stack_preset_name",
+                violation_error_message="The library already has a stack of that name for this valve.",
+            )
+        ]
+
+    def __str__(self) -> str:
+        return f"{self.unit_model}: {self.get_valve_display()}, {self.name}"

@@ -25,19 +25,29 @@ from shopdesk.workshop.bench_forms import (
     VoidForm,
     shop_temperature,
 )
-from shopdesk.workshop.models import FinalCheck, LabourEntry, OilRecord, PartUsed, SpringRecord, WorkOrder
+from shopdesk.workshop.models import (
+    FinalCheck,
+    LabourEntry,
+    OilRecord,
+    PartUsed,
+    ShimStackRecord,
+    SpringRecord,
+    WorkOrder,
+)
 
 RECORD_MODELS: dict[str, type] = {
     "oil": OilRecord,
     "spring": SpringRecord,
     "part": PartUsed,
     "labour": LabourEntry,
+    "stack": ShimStackRecord,
 }
 RECORD_PERMISSIONS = {
     "oil": "workshop.change_oilrecord",
     "spring": "workshop.change_springrecord",
     "part": "workshop.change_partused",
     "labour": "workshop.change_labourentry",
+    "stack": "workshop.change_shimstackrecord",
 }
 
 
@@ -151,6 +161,7 @@ def job_context(work_order: WorkOrder, user: Any, overrides: Overrides | None = 
         "required_chambers": {chamber.pk for chamber in services.required_chambers(work_order)},
         "voided_oil": [record for record in oil_records if record.is_void],
         "springs": springs,
+        "stack_summaries": selectors.stack_summaries(work_order),
         "spring_plot": _spring_plot(unit_model, live_spring),
         "voided_springs": [record for record in spring_records if record.is_void],
         "parts": parts,
@@ -374,6 +385,8 @@ def record_void(request: HttpRequest, number: str, kind: str, record_id: int) ->
             messages.error(request, " ".join(error.messages))
         else:
             messages.success(request, "Record voided; it stays on the job, marked void.")
+    if kind == "stack":
+        return redirect("workshop:valve", work_order.number, record.valve)
     if request.htmx:
         return _render_job(request, work_order)
     return redirect(work_order)

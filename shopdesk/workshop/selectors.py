@@ -4,17 +4,20 @@ from __future__ import annotations
 
 import datetime
 from dataclasses import dataclass, field
+from typing import Any
 
 from django.db.models import Case, Count, F, Max, QuerySet, Value, When, Window
 from django.db.models.functions import RowNumber
 from django.utils import timezone
 
-from shopdesk.calc import schedule
+from shopdesk.calc import Q_, CalcInputError, schedule
+from shopdesk.calc import shims as shim_calc
 from shopdesk.calc.schedule import DueStatus
 from shopdesk.customers.models import Unit
-from shopdesk.specs.models import ServiceType
+from shopdesk.specs.geometry import shim_stack_for
+from shopdesk.specs.models import ServiceType, StackFields, Valve
 from shopdesk.workshop import flow
-from shopdesk.workshop.models import OPEN_STATUSES, ServiceRecord, Status, WorkOrder
+from shopdesk.workshop.models import OPEN_STATUSES, ServiceRecord, ShimStackRecord, Status, WorkOrder
 
 BOARD_LIMIT_PER_STATUS = 100
 
@@ -172,3 +175,55 @@ def unit_service_history(unit: Unit, *, limit: int = 100) -> list[ServiceRecord]
         .select_related("service_type", "as_part_of", "work_order")
         .order_by("-done_on", "id")[:limit]
     )
+
+
+# --- Revalves -----------------------------------------------------------------------------------
+
+COMPARE_LIFT_MM = 0.25  # compare stacks at the load that lifts the stack before this far (common practice)
+
+
+def stack_comparison(before: StackFields, after: StackFields) -> tuple[float, tuple[str, ...]] | None:
+    """The load the two stacks are compared at (N) and the comparison in words; None if one cannot be modelled."""
+    try:
+        old, new = shim_stack_for(before), shim_stack_for(after)
+        reference = old.load_for_lift(Q_(COMPARE_LIFT_MM, "mm"))
+        return float(reference.magnitude), shim_calc.compare(old, new, reference_load=reference).lines
+    except CalcInputError:
+        return None
+
+
+def stack_summaries(work_order: WorkOrder) -> list[dict[str, Any]]:
+    """For the job page: each valve with its live stacks in shorthand and the comparison in words."""
+    records = [r for r in ShimStackRecord.objects.filter(work_order=work_order) if not r.is_void]
+    rows = []
+    for valve, label in Valve.choices:
+        live = {r.stage: r for r in records if r.valve == valve}
+        words: tuple[str, ...] = ()
+        if len(live) == 2:
+            compared = stack_comparison(live["before"], live["after"])
+            words = compared[1][:1] if compared else ()
+        rows.append({"valve": valve, "label": label, "records": live, "words": words})
+    return rows
+
+
+def unit_revalves(unit: Unit) -> list[dict[str, Any]]:
+    """Every revalve in a unit's history, newest first: per job and valve, the stacks and the change."""
+    records = (
+        ShimStackRecord.objects.filter(work_order__unit=unit, voided_at__isnull=True)
+        .exclude(work_order__status=Status.CANCELLED)
+        .select_related("work_order")
+        .order_by("-work_order__checked_in_at", "valve", "stage")
+    )
+    grouped: dict[tuple[int, str], dict[str, Any]] = {}
+    for record in records:
+        row = grouped.setdefault(
+            (record.work_order_id, record.valve),
+            {"work_order": record.work_order, "valve": record.get_valve_display(), "stages": {}},
+        )
+        row["stages"][record.stage] = record
+    rows = []
+    for row in grouped.values():
+        before, after = row["stages"].get("before"), row["stages"].get("after")
+        compared = stack_comparison(before, after) if before and after else None
+        rows.append({**row, "before": before, "after": after, "words": compared[1] if compared else ()})
+    return rows

@@ -1,6 +1,6 @@
 from django.urls import path
 
-from shopdesk.workshop import bench_views, views
+from shopdesk.workshop import bench_views, revalve_views, views
 
 app_name = "workshop"
 
@@ -17,5 +17,8 @@ urlpatterns = [
     path("jobs/<str:number>/parts/", bench_views.part_add, name="part"),
     path("jobs/<str:number>/labour/", bench_views.labour_save, name="labour"),
     path("jobs/<str:number>/checks/<int:check_id>/", bench_views.check_set, name="check"),
+    path("jobs/<str:number>/stacks/<str:valve>/", revalve_views.valve_detail, name="valve"),
+    path("jobs/<str:number>/stacks/<str:valve>/<str:stage>/", revalve_views.stack_post, name="stack"),
+    path("stack-library/<int:unit_model_id>/", revalve_views.stack_library, name="stack-library"),
     path("jobs/<str:number>/void/<str:kind>/<int:record_id>/", bench_views.record_void, name="void"),
 ]

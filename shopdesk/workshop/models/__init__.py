@@ -7,6 +7,7 @@ from shopdesk.workshop.models.bench import (
     OilRecord,
     PartUsed,
     ServiceRecord,
+    ShimStackRecord,
     SpringRecord,
 )
 from shopdesk.workshop.models.jobs import (
@@ -30,6 +31,7 @@ __all__ = [
     "PartUsed",
     "RequestedService",
     "ServiceRecord",
+    "ShimStackRecord",
     "SpringRecord",
     "Status",
     "WorkOrder",

@@ -16,7 +16,7 @@ from django.db.models import Q
 from simple_history.models import HistoricalRecords
 
 from shopdesk.customers.models import Unit
-from shopdesk.specs.models import Chamber, ServiceType
+from shopdesk.specs.models import Chamber, ServiceType, StackFields
 from shopdesk.workshop.models.jobs import WorkOrder
 
 
@@ -236,3 +236,39 @@ class ServiceRecord(models.Model):
 
     def __str__(self) -> str:
         return f"{self.unit}: {self.service_type} on {self.done_on}"
+
+
+class ShimStackRecord(BenchRecord, StackFields):
+    """A valve's shim stack as found (before) or as built (after) on a revalve.
+
+    ``static_pressure_kpa`` (gauge) is the damper's pressure at rest behind the piston (a gas
+    charge, a spring-backed IFP, a bladder near top-out): with it the page estimates the
+    cavitation margin on the rebound stroke.
+    """
+
+    class Stage(models.TextChoices):
+        BEFORE = "before", "Before"
+        AFTER = "after", "After"
+
+    stage = models.CharField(max_length=10, choices=Stage.choices)
+    static_pressure_kpa = models.FloatField(
+        "damper static pressure (kPa, gauge)",
+        null=True,
+        blank=True,
+        validators=[MinValueValidator(0), MaxValueValidator(4000)],
+    )
+    notes = models.CharField(max_length=300, blank=True)
+    history = HistoricalRecords()
+
+    class Meta:
+        ordering = ["work_order", "valve", "stage"]
+        constraints = [
+            models.UniqueConstraint(
+                fields=["work_order", "valve", "stage"],
+                condition=Q(voided_at__isnull=True),
+                name="one_live_stack_record",
+            )
+        ]
+
+    def __str__(self) -> str:
+        return f"{self.work_order}: {self.get_valve_display().lower()}, {self.get_stage_display().lower()}"
