@@ -601,3 +601,19 @@ def test_stack_functions_refuse_what_is_not_a_stack():
         compare(crossover_stack(), "after", reference_load=newtons(10))
     with pytest.raises(CalcInputError, match="reference_load"):
         compare(crossover_stack(), crossover_stack(), reference_load=newtons(0))
+
+
+@pytest.mark.parametrize("load", [0.0, 5.0, 16.0, 40.0, 120.0])
+def test_load_for_lift_inverts_lift_through_every_stage(load):
+    # Round trip through the piecewise-linear lift curve, crossover and preload included.
+    stack = crossover_stack(preload=newtons(4.0))
+    lift = stack.lift(newtons(max(load, 4.0)))
+    assert stack.load_for_lift(lift).to("N").magnitude == pytest.approx(max(load, 4.0), rel=1e-12)
+    assert stack.load_for_lift(mm(0.0)).to("N").magnitude == pytest.approx(4.0)
+
+
+@QUICK
+@given(value=bad_values("mm", 0.0, 10.0))
+def test_load_for_lift_refuses_bad_lifts(value):
+    with pytest.raises(CalcInputError):
+        crossover_stack().load_for_lift(value)
