@@ -172,4 +172,8 @@ def _clean_svg(text: str, *, title: str, id_prefix: str) -> str:
     title_element = ET.Element(f"{{{SVG_NS}}}title", {"id": f"{id_prefix}-title"})
     title_element.text = title
     root.insert(0, title_element)
+    # The prefix map is global to the process and other libraries (the PDF writer's metadata)
+    # register prefixes of their own, which can drop ours: name both again, every time.
+    ET.register_namespace("", SVG_NS)
+    ET.register_namespace("xlink", XLINK_NS)
     return ET.tostring(root, encoding="unicode")

@@ -65,3 +65,16 @@ def test_it_draws_the_same_plot_from_several_threads_at_once() -> None:
     with ThreadPoolExecutor(max_workers=4) as pool:
         together = list(pool.map(lambda _: air_spring_plot(CURVES, [("Sag", 28.0, 275.0)]), range(8)))
     assert all(text == alone for text in together)
+
+
+def test_it_stays_plain_svg_after_another_library_claims_the_default_prefix() -> None:
+    # The PDF writer registers XML prefixes of its own in the process-wide map; a plot drawn
+    # after that must still be plain <svg>, not <ns0:svg> (which browsers show as nothing).
+    from xml.etree.ElementTree import register_namespace
+
+    from shopdesk.shop.plots import air_spring_plot
+
+    register_namespace("", "adobe:ns:meta/")
+    register_namespace("x", "http://www.w3.org/1999/xlink")
+    svg = air_spring_plot([("a", [0.0, 1.0], [0.0, 1.0], "main")])
+    assert svg.startswith("<svg") and "ns0:" not in svg
