@@ -6,7 +6,7 @@ formulas and the solver for plates pressing on each other;
 :mod:`shopdesk.calc.shims` builds stacks, crossovers and damping curves on
 them.
 
-Sources (all recalled from memory, as ``/work/shared/REFERENCES.md`` cites them):
+Sources (all recalled from memory, as the project's reference list (REFERENCES.md) cites them):
 
 - Roark's *Formulas for Stress and Strain*, 7th ed., Table 11.2, case 1L:
   annular plate, outer edge free, inner edge fixed, uniform line load ``w``

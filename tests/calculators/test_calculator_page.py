@@ -1,6 +1,6 @@
 """The calculator page: each section's answer, its errors at the field, htmx partials, access.
 
-Check values come from /work/shared/REFERENCES.md (named beside each) or, where no published
+Check values come from the reference list (REFERENCES.md) (named beside each) or, where no published
 value exists, from the calculation library called directly with the same inputs.
 """
 

@@ -16,11 +16,6 @@ from shopdesk.workshop.models import ShimStackRecord, WorkOrder
 from shopdesk.workshop.services.bench import RecordConflict, _apply, _check_job_open, _event, _locked
 
 
-def _summary(values: Mapping[str, Any]) -> str:
-    lines = ", ".join(f"{line['count']} × {line['od']:g} × {line['thickness']:g}" for line in values["shims"])
-    return f"{lines} / clamp {values['clamp_mm']:g} mm"
-
-
 def shim_stack_save(
     *,
     work_order: WorkOrder,
@@ -52,7 +47,7 @@ def shim_stack_save(
         _apply(record, values={**values, "valve": valve}, by=by, now=now, creating=creating)
         where = f"{Valve(valve).label}, {ShimStackRecord.Stage(stage).label.lower()}"
         if creating:
-            _event(job, by, f"Shim stack, {where}: recorded {_summary(values)}.", now)
+            _event(job, by, f"Shim stack, {where}: recorded {record.lines_text()}.", now)
         else:
             _event(job, by, f"Shim stack, {where}: changed from {before} to {record.lines_text()}.", now)
     return record
