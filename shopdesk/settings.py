@@ -238,3 +238,14 @@ SHOP_FORK_SAG = float(env_decimal("SHOP_FORK_SAG", "0.20", minimum=Decimal("0.05
 SHOP_CAVITATION_THRESHOLD_KPA = float(
     env_decimal("SHOP_CAVITATION_THRESHOLD_KPA", "30", minimum=Decimal("0"), maximum=Decimal("101"))
 )
+
+# --- Printed documents (job cards, service reports) -------------------------------------------
+# The paper the shop prints on, and the address a job card's QR code points to when it is made
+# without a request (a command, a printer script). Pages use the address they were asked on.
+SHOP_PAPER_SIZE = env_choice("SHOP_PAPER_SIZE", "A4", ("A4", "Letter"))
+SHOP_BASE_URL = env_str("SHOP_BASE_URL", "http://127.0.0.1:8000").rstrip("/")
+if not SHOP_BASE_URL.startswith(("http://", "https://")) or " " in SHOP_BASE_URL:
+    raise ImproperlyConfigured(f"SHOP_BASE_URL must be an http:// or https:// address, not {SHOP_BASE_URL!r}.")
+# Batches of job cards render in a background thread; tests run them in the request instead.
+SHOP_PRINT_IN_BACKGROUND = env_bool("SHOP_PRINT_IN_BACKGROUND", not TESTING)
+PRINT_BATCH_DIR = BASE_DIR / "var" / "print"

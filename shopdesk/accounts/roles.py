@@ -51,6 +51,9 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         "workshop.check_in_workorder",
         "workshop.hand_back_workorder",
         "workshop.cancel_workorder",
+        # Paper: the job card at check-in, the customer's service report at pickup.
+        "documents.print_job_card",
+        "documents.print_service_report",
     ],
     TECHNICIAN: [
         "customers.view_customer",
@@ -78,12 +81,14 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         "stock.view_stockmovement",
         # The stack library: a technician saves a stack under a name; only the owner changes one.
         "specs.add_stackpreset",
+        # Paper: job cards for the bench (the customer's report is the front desk's).
+        "documents.print_job_card",
     ],
     # The owner holds every permission of the shop's own apps and of user management.
     OWNER: ["*"],
 }
 
-OWNER_APPS = ("auth", "customers", "specs", "stock", "workshop", "accounts", "shop", "owner")
+OWNER_APPS = ("auth", "customers", "specs", "stock", "workshop", "accounts", "shop", "owner", "documents")
 
 
 def sync_roles(apps: Any, schema_editor: Any = None) -> None:

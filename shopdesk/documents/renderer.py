@@ -1,20 +1,49 @@
 """The one document renderer: given a work order and a kind of document, return (filename, MIME type, bytes).
 
-Static files are read from disk through a url_fetcher; nothing is ever fetched over the network.
+The pages, the batch and the commands all call it. Static files are read from disk through a
+url_fetcher; nothing is ever fetched over the network. Fonts are the system's (DejaVu Sans,
+installed by `.ci/run`).
 """
 
 from __future__ import annotations
 
+import functools
+import mimetypes
+from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 from django.conf import settings
 from django.contrib.staticfiles import finders
 from django.template.loader import render_to_string
+from django.utils import timezone
 
+from shopdesk.documents import selectors
 from shopdesk.workshop.models import WorkOrder
 
-KINDS = {"job_card": "documents/job_card.html"}
+PDF = "application/pdf"
+
+
+@dataclass(frozen=True)
+class Kind:
+    template: str
+    context: Callable[..., dict[str, Any]]
+    file_prefix: str
+
+
+KINDS = {
+    "job_card": Kind(
+        "documents/job_card.html",
+        lambda work_order, job_address: selectors.job_card_context(work_order, job_address=job_address),
+        "job-card",
+    ),
+    "service_report": Kind(
+        "documents/service_report.html",
+        lambda work_order, job_address: selectors.service_report_context(work_order),
+        "service-report",
+    ),
+}
 
 
 @dataclass(frozen=True)
@@ -24,31 +53,82 @@ class Document:
     content: bytes
 
 
-def _url_fetcher(url: str, *args: object, **kwargs: object) -> dict[str, object]:
-    """Map /static/... to the file on disk; refuse every other address (no network)."""
+def static_file_for(url: str) -> Path:
+    """The file on disk behind a /static/... address; ValueError for every other address (no network)."""
     prefix = "/" + settings.STATIC_URL.lstrip("/")
-    path = url.split("://", 1)[-1] if url.startswith("file://") else url
-    if url.startswith(prefix) or path.startswith(prefix):
-        found = finders.find(path.removeprefix(prefix))
+    path = url.removeprefix("file://") if url.startswith("file://") else url
+    if path.startswith(prefix):
+        found = finders.find(path.removeprefix(prefix).split("?")[0])
         if found:
-            return {"file_obj": Path(found).open("rb"), "filename": found}
+            return Path(found)
     raise ValueError(f"Documents read only the project's static files, not {url!r}.")
 
 
-def render_document(work_order: WorkOrder, kind: str, *, base_url: str = "") -> Document:
-    from weasyprint import HTML  # heavy import, only where a PDF is made
+@functools.cache
+def _url_fetcher() -> Any:
+    from weasyprint.urls import URLFetcher, URLFetcherResponse
 
+    class StaticFilesOnly(URLFetcher):  # type: ignore[misc]
+        """WeasyPrint's fetcher, limited to the project's static files read from disk."""
+
+        def fetch(self, url: str, headers: object = None) -> Any:
+            path = static_file_for(url)
+            return URLFetcherResponse(url, path.read_bytes(), {"Content-Type": _content_type(path)})
+
+    return StaticFilesOnly(fail_on_errors=True)
+
+
+def _content_type(path: Path) -> str:
+    return mimetypes.guess_type(path.name)[0] or "application/octet-stream"
+
+
+def job_address(work_order: WorkOrder, base_url: str | None = None) -> str:
+    """The job page's full address: the request's own when there is one, else SHOP_BASE_URL."""
+    return (base_url or settings.SHOP_BASE_URL).rstrip("/") + work_order.get_absolute_url()
+
+
+def _html(work_order: WorkOrder, kind: str, base_url: str | None) -> str:
     if kind not in KINDS:
         raise ValueError(f"Unknown document kind {kind!r}.")
-    html = render_to_string(
-        KINDS[kind],
+    context = KINDS[kind].context(work_order, job_address(work_order, base_url))
+    context.update(
         {
-            "work_order": work_order,
             "shop_name": settings.SHOP_NAME,
-            "job_address": base_url + work_order.get_absolute_url(),
-        },
+            "paper_size": settings.SHOP_PAPER_SIZE,
+            "printed_at": timezone.localtime(),
+        }
     )
-    pdf = HTML(string=html, url_fetcher=_url_fetcher, base_url="/").write_pdf()
-    return Document(
-        filename=f"{kind.replace('_', '-')}-{work_order.number}.pdf", mime_type="application/pdf", content=pdf
-    )
+    return render_to_string(KINDS[kind].template, context)
+
+
+def _weasy_document(html: str) -> Any:
+    from weasyprint import HTML  # heavy import, only where a PDF is made
+
+    return HTML(string=html, url_fetcher=_url_fetcher(), base_url="/").render()
+
+
+def render_document(work_order: WorkOrder, kind: str, *, base_url: str | None = None) -> Document:
+    """One document for one job. Raises ``selectors.DocumentRefused`` when the job is not ready for it."""
+    pdf = _weasy_document(_html(work_order, kind, base_url)).write_pdf()
+    return Document(filename=f"{KINDS[kind].file_prefix}-{work_order.number}.pdf", mime_type=PDF, content=pdf)
+
+
+def render_job_cards(
+    work_orders: Iterable[WorkOrder],
+    *,
+    base_url: str | None = None,
+    progress: Callable[[int], None] | None = None,
+    filename: str = "job-cards.pdf",
+) -> Document:
+    """The job cards of several jobs as one PDF, one card a page; ``progress`` hears each card done."""
+    pages: list[Any] = []
+    first_document = None
+    for count, work_order in enumerate(work_orders, start=1):
+        document = _weasy_document(_html(work_order, "job_card", base_url))
+        first_document = first_document or document
+        pages.extend(document.pages)
+        if progress:
+            progress(count)
+    if first_document is None:
+        raise selectors.DocumentRefused("No jobs to print.")
+    return Document(filename=filename, mime_type=PDF, content=first_document.copy(pages).write_pdf())
