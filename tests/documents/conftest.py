@@ -158,3 +158,39 @@ def crowded_work_order(db, customer, front_desk, service_types, oil):
             "compression_clicks": 4,
         },
     )
+
+
+@pytest.fixture
+def ready_work_order(work_order, technician, oil_part):
+    """The conftest job with its bench work done (spring before and after, a revalve), ready for pickup."""
+    from shopdesk.workshop import services
+    from shopdesk.workshop.models import Status
+    from shopdesk.workshop.services.revalve import shim_stack_save
+    from tests.conftest import finish_bench_work
+
+    services.work_order_move(work_order=work_order, target=Status.ON_THE_BENCH, by=technician)
+    services.spring_record_save(
+        work_order=work_order,
+        stage="before",
+        by=technician,
+        values={"positive_pressure_kpa": 650.0, "spacer_count": 1},
+    )
+    stack = {"clamp_mm": 8.0, "preload_n": 0.0}
+    shim_stack_save(
+        work_order=work_order,
+        valve="rebound",
+        stage="before",
+        by=technician,
+        values={**stack, "shims": [{"od": 20.0, "thickness": 0.15, "count": 3}]},
+    )
+    shim_stack_save(
+        work_order=work_order,
+        valve="rebound",
+        stage="after",
+        by=technician,
+        values={**stack, "shims": [{"od": 20.0, "thickness": 0.15, "count": 2}]},
+    )
+    finish_bench_work(work_order, technician, oil_part)
+    services.work_order_move(work_order=work_order, target=Status.FINAL_CHECK, by=technician)
+    services.work_order_move(work_order=work_order, target=Status.READY_FOR_PICKUP, by=technician)
+    return work_order
