@@ -245,7 +245,9 @@ SHOP_CAVITATION_THRESHOLD_KPA = float(
 SHOP_PAPER_SIZE = env_choice("SHOP_PAPER_SIZE", "A4", ("A4", "Letter"))
 SHOP_BASE_URL = env_str("SHOP_BASE_URL", "http://127.0.0.1:8000").rstrip("/")
 if not SHOP_BASE_URL.startswith(("http://", "https://")) or " " in SHOP_BASE_URL:
-    raise ImproperlyConfigured(f"SHOP_BASE_URL must be an http:// or https:// address, not {SHOP_BASE_URL!r}.")
+    raise ImproperlyConfigured(
+        f"SHOP_BASE_URL must be an http:// or https:// address, not {SHOP_BASE_URL!r}."
+    )
 # Batches of job cards render in a background thread; tests run them in the request instead.
 SHOP_PRINT_IN_BACKGROUND = env_bool("SHOP_PRINT_IN_BACKGROUND", not TESTING)
 PRINT_BATCH_DIR = BASE_DIR / "var" / "print"

@@ -12,6 +12,7 @@ from typing import Any
 
 import segno
 from django.conf import settings
+from django.utils import timezone
 
 from shopdesk.customers.models import Unit
 from shopdesk.documents.models import DocumentWording
@@ -132,6 +133,24 @@ def job_card_context(work_order: WorkOrder, *, job_address: str) -> dict[str, An
         "job_address": job_address,
         "qr_svg": qr_svg(job_address),
     }
+
+
+def checked_in_today(*, today: datetime.date | None = None) -> list[str]:
+    """The numbers of every job checked in today (the shop's local day), oldest first."""
+    day = today or timezone.localdate()
+    start = timezone.make_aware(datetime.datetime.combine(day, datetime.time.min))
+    return list(
+        WorkOrder.objects.filter(
+            checked_in_at__gte=start, checked_in_at__lt=start + datetime.timedelta(days=1)
+        )
+        .order_by("checked_in_at", "sequence")
+        .values_list("number", flat=True)
+    )
+
+
+def batch_candidates(*, limit: int = 200) -> list[WorkOrder]:
+    """Open jobs to pick from for a batch, newest first."""
+    return list(selectors.open_work_orders().order_by("-checked_in_at")[:limit])
 
 
 # --- The service report -------------------------------------------------------------------------

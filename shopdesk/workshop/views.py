@@ -46,6 +46,9 @@ def check_in(request: HttpRequest, unit_id: int) -> HttpResponse:
             form.add_error(None, error)
         else:
             messages.success(request, f"Checked in as {work_order.number}.")
+            if request.POST.get("then") == "print" and request.user.has_perm("documents.print_job_card"):
+                # The job page starts the job card's download (documents/partials/print_now.html).
+                return redirect(f"{work_order.get_absolute_url()}?print=job-card")
             return redirect(work_order)
     services_chosen = form.cleaned_data.get("service_types", []) if form.is_bound and form.is_valid() else []
     return render(

@@ -1,0 +1,119 @@
+"""Batches of job cards: today's check-ins or a picked set, as one PDF, with progress on a page."""
+
+from __future__ import annotations
+
+import datetime
+
+import pytest
+from django.urls import reverse
+from django.utils import timezone
+
+from shopdesk.documents import selectors, services
+from shopdesk.documents.models import PrintBatch
+from shopdesk.workshop.services import work_order_check_in
+from tests.documents.conftest import pdf_pages, pdf_text
+
+
+@pytest.fixture
+def three_jobs(work_order, unit, front_desk, service_types):
+    yesterday = timezone.now() - datetime.timedelta(days=1)
+    older = work_order_check_in(unit=unit, by=front_desk, service_types=service_types, now=yesterday)
+    newer = work_order_check_in(unit=unit, by=front_desk, service_types=service_types[:1])
+    return {"today": [work_order, newer], "yesterday": older}
+
+
+def test_today_means_the_jobs_checked_in_today(three_jobs):
+    assert selectors.checked_in_today() == [job.number for job in three_jobs["today"]]
+
+
+def test_the_worker_renders_one_card_a_page_in_order(three_jobs, front_desk, tmp_path, settings):
+    settings.PRINT_BATCH_DIR = tmp_path / "print"
+    numbers = [three_jobs["yesterday"].number, three_jobs["today"][0].number]
+    batch = PrintBatch.objects.create(
+        created_at=timezone.now(), created_by=front_desk, numbers=numbers, base_url="http://desk.example/"
+    )
+    done = services.print_batch_render(batch_id=batch.pk)
+    assert done.state == PrintBatch.State.DONE
+    assert done.done_count == 2
+    pdf = services.batch_path(done).read_bytes()
+    assert pdf_pages(pdf, tmp_path) == 2
+    text = pdf_text(pdf, tmp_path)
+    assert text.index(numbers[0]) < text.index(numbers[1])
+    # A second worker finds the batch taken and leaves it alone.
+    assert services.print_batch_render(batch_id=batch.pk).finished_at == done.finished_at
+
+
+def test_a_failed_batch_keeps_its_reason(three_jobs, front_desk, tmp_path, settings):
+    blocker = tmp_path / "not-a-folder"
+    blocker.write_text("a file where the folder should be")
+    settings.PRINT_BATCH_DIR = blocker
+    batch = PrintBatch.objects.create(
+        created_at=timezone.now(),
+        created_by=front_desk,
+        numbers=[three_jobs["yesterday"].number],
+        base_url="/",
+    )
+    failed = services.print_batch_render(batch_id=batch.pk)
+    assert failed.state == PrintBatch.State.FAILED
+    assert "FileExistsError" in failed.error or "NotADirectoryError" in failed.error
+
+
+def test_the_page_prints_todays_check_ins_and_offers_the_file(
+    client, front_desk, three_jobs, tmp_path, settings
+):
+    settings.PRINT_BATCH_DIR = tmp_path / "print"
+    client.force_login(front_desk)
+    page = client.get(reverse("documents:batch-new")).content.decode()
+    assert "Print today's 2 job cards" in page
+    response = client.post(reverse("documents:batch-new"), {"which": "today"})
+    batch = PrintBatch.objects.get()
+    assert response["Location"] == reverse("documents:batch", args=[batch.pk])
+    assert batch.numbers == [job.number for job in three_jobs["today"]]
+    status = client.get(response["Location"]).content.decode()
+    assert reverse("documents:batch-file", args=[batch.pk]) in status
+    assert 'hx-trigger="every 1s"' not in status  # done: the page stops polling
+    download = client.get(reverse("documents:batch-file", args=[batch.pk]))
+    assert download["Content-Disposition"].startswith("attachment;")
+    assert pdf_pages(b"".join(download.streaming_content), tmp_path) == 2
+
+
+def test_the_page_prints_a_picked_set(client, front_desk, three_jobs, tmp_path, settings):
+    settings.PRINT_BATCH_DIR = tmp_path / "print"
+    client.force_login(front_desk)
+    picked = three_jobs["yesterday"].number
+    client.post(reverse("documents:batch-new"), {"which": "picked", "numbers": [picked]})
+    assert PrintBatch.objects.get().numbers == [picked]
+
+
+def test_picking_nothing_or_an_unknown_job_says_so(client, front_desk, three_jobs):
+    client.force_login(front_desk)
+    response = client.post(reverse("documents:batch-new"), {"which": "picked"})
+    assert response.status_code == 400
+    assert "Pick at least one job to print." in response.content.decode()
+    response = client.post(reverse("documents:batch-new"), {"which": "picked", "numbers": ["2099-0001"]})
+    assert "No job numbered 2099-0001." in response.content.decode()
+    assert not PrintBatch.objects.exists()
+
+
+def test_a_running_batch_polls_and_has_a_plain_refresh(client, front_desk, three_jobs):
+    batch = PrintBatch.objects.create(
+        created_at=timezone.now(),
+        created_by=front_desk,
+        numbers=[three_jobs["yesterday"].number],
+        base_url="/",
+    )
+    client.force_login(front_desk)
+    page = client.get(reverse("documents:batch", args=[batch.pk])).content.decode()
+    assert 'hx-trigger="every 1s"' in page
+    assert '<noscript><meta http-equiv="refresh" content="2"></noscript>' in page
+    assert "0 of 1 cards done" in page
+    part = client.get(reverse("documents:batch", args=[batch.pk]), HTTP_HX_REQUEST="true").content.decode()
+    assert part.lstrip().startswith('<section id="batch-status"')
+    assert client.get(reverse("documents:batch-file", args=[batch.pk])).status_code == 404  # not done yet
+
+
+def test_a_batch_needs_the_permission_to_print(client, front_desk, three_jobs, django_user_model):
+    stranger = django_user_model.objects.create_user(username="visitor", password="correct-horse-battery-9")
+    client.force_login(stranger)
+    assert client.get(reverse("documents:batch-new")).status_code == 403
+    assert client.post(reverse("documents:batch-new"), {"which": "today"}).status_code == 403
