@@ -14,14 +14,20 @@ from shopdesk.customers.forms import CustomerForm, SetupForm, UnitForm
 from shopdesk.customers.models import Customer, Unit
 from shopdesk.specs.models import UnitModel
 from shopdesk.workshop.models import WorkOrder
+from shopdesk.workshop.selectors import work_order_from_scan
 
 
 @require_GET
 @permission_required("customers.view_customer", raise_exception=True)
 def search(request: HttpRequest) -> HttpResponse:
-    results = selectors.search(request.GET.get("q", ""))
+    query = request.GET.get("q", "")
+    # A scanner types a job card's QR address or a job number, then Enter: open that job.
+    scanned = work_order_from_scan(query)
+    if scanned is not None and not request.htmx:
+        return redirect(scanned)
+    results = selectors.search(query)
     template = "customers/search.html#results" if request.htmx else "customers/search.html"
-    return render(request, template, {"results": results})
+    return render(request, template, {"results": results, "scanned": scanned})
 
 
 @require_http_methods(["GET", "POST"])

@@ -3,11 +3,14 @@
 from __future__ import annotations
 
 import datetime
+import re
 from dataclasses import dataclass, field
 from typing import Any
+from urllib.parse import urlsplit
 
 from django.db.models import Case, Count, F, Max, QuerySet, Value, When, Window
 from django.db.models.functions import RowNumber
+from django.urls import Resolver404, resolve
 from django.utils import timezone
 
 from shopdesk.calc import Q_, CalcInputError, schedule
@@ -148,6 +151,32 @@ def unit_due_dates(unit: Unit, *, today: datetime.date | None = None, soon_days:
             )
         )
     return due_dates
+
+
+JOB_NUMBER = re.compile(r"\d{4}-\d{4,6}")
+
+
+def work_order_from_scan(text: str) -> WorkOrder | None:
+    """The job a scanner typed: its number ("2026-0042") or its address from a job card's QR code.
+
+    Only the address's path counts (a card printed under another host name still opens the job
+    here); anything else is not a scan and the search goes on as typed.
+    """
+    text = text.strip()
+    number = None
+    if JOB_NUMBER.fullmatch(text):
+        number = text
+    elif "/jobs/" in text and len(text) < 300:
+        path = urlsplit(text if "://" in text or text.startswith("/") else "//" + text).path
+        try:
+            match = resolve(path)
+        except Resolver404:
+            return None
+        if match.view_name == "workshop:work-order":
+            number = match.kwargs["number"]
+    if number is None:
+        return None
+    return WorkOrder.objects.filter(number=number).first()
 
 
 BENCH_STATUSES = (Status.CHECKED_IN, Status.WAITING_FOR_PARTS, Status.ON_THE_BENCH, Status.FINAL_CHECK)
