@@ -21,6 +21,7 @@ from __future__ import annotations
 import argparse
 import os
 import resource
+import shutil
 import statistics
 import sys
 import tempfile
@@ -118,6 +119,7 @@ def main() -> None:
         print(
             f"  peak Python heap during a batch of {len(numbers)} (tracemalloc): {heap_peak / 2**20:.0f} MiB"
         )
+    shutil.rmtree(settings.PRINT_BATCH_DIR, ignore_errors=True)
 
 
 def _batch(services, PrintBatch, numbers, user):  # type: ignore[no-untyped-def]

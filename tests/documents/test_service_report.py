@@ -82,3 +82,18 @@ def test_the_command_writes_the_report(ready_work_order, tmp_path):
 def test_the_command_refuses_an_unknown_number():
     with pytest.raises(CommandError, match="No job numbered 2099-0001"):
         call_command("print_service_report", "2099-0001")
+
+
+def test_the_owner_edits_the_wording_in_the_admin_and_a_bad_placeholder_is_refused_at_the_field(
+    client, owner
+):
+    client.force_login(owner)
+    url = "/admin/documents/documentwording/add/"
+    assert client.get(url).status_code == 200
+    response = client.post(url, {"block": "note", "text": "Ride well, {rider}."})
+    assert response.status_code == 200  # the form again, with the error at the text
+    assert "Unknown placeholder {rider}" in response.content.decode()
+    assert not DocumentWording.objects.exists()
+    response = client.post(url, {"block": "note", "text": "Ride well, {customer}."})
+    assert response.status_code == 302
+    assert DocumentWording.objects.get().text == "Ride well, {customer}."
