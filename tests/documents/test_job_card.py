@@ -2,6 +2,11 @@
 
 from __future__ import annotations
 
+import os
+import subprocess
+import sys
+from pathlib import Path
+
 import pytest
 from django.core.management import CommandError, call_command
 
@@ -138,3 +143,25 @@ def test_the_renderer_reads_static_files_from_disk_and_refuses_the_network():
     for address in ("https://cdn.example/font.woff2", "http://127.0.0.1:8000/static/css/documents.css"):
         with pytest.raises(ValueError, match="only the project's static files"):
             static_file_for(address)
+
+
+@pytest.mark.parametrize(
+    ("variable", "value", "message"),
+    [
+        ("SHOP_PAPER_SIZE", "A5", "SHOP_PAPER_SIZE must be one of A4, Letter, not 'A5'."),
+        ("SHOP_BASE_URL", "desk.shop.example", "SHOP_BASE_URL must be an http:// or https:// address"),
+    ],
+)
+def test_a_bad_print_setting_stops_start_up_with_its_name(variable, value, message):
+    root = Path(__file__).resolve().parents[2]
+    environment = {**os.environ, "DJANGO_SETTINGS_MODULE": "shopdesk.settings", variable: value}
+    result = subprocess.run(
+        [sys.executable, "-c", "import django; django.setup()"],
+        cwd=root,
+        env=environment,
+        capture_output=True,
+        text=True,
+        check=False,
+    )
+    assert result.returncode != 0
+    assert message in result.stderr
