@@ -115,3 +115,10 @@ def due_refresh_all(*, units: QuerySet[Unit] | None = None, batch: int = BATCH) 
 def due_refresh(*, unit: Unit) -> int:
     """Recompute one unit's due dates: called by the services that change its history or its rider's week."""
     return due_refresh_all(units=Unit.objects.filter(pk=unit.pk))
+
+
+def due_refresh_for_intervals(*, unit_model_id: int | None = None) -> int:
+    """Recompute the due dates an interval change moves: one spec sheet's units, or every unit when a
+    service type's defaults, scope or active flag changed. Called by the admin that edits them."""
+    units = Unit.objects.all() if unit_model_id is None else Unit.objects.filter(unit_model_id=unit_model_id)
+    return due_refresh_all(units=units)

@@ -1,5 +1,6 @@
 from django.contrib import admin
 
+from shopdesk.owner.services import due_refresh_for_intervals
 from shopdesk.specs.models import (
     Chamber,
     Oil,
@@ -42,6 +43,11 @@ class UnitModelAdmin(admin.ModelAdmin):
     search_fields = ["maker", "name"]
     inlines = [ChamberInline, TorqueValueInline, ServiceIntervalInline]
 
+    def save_related(self, request, form, formsets, change):  # type: ignore[no-untyped-def]
+        super().save_related(request, form, formsets, change)
+        # The spec sheet's own intervals (the inline) move its units' due dates.
+        due_refresh_for_intervals(unit_model_id=form.instance.pk)
+
 
 @admin.register(Oil)
 class OilAdmin(admin.ModelAdmin):
@@ -61,6 +67,19 @@ class ServiceTypeAdmin(admin.ModelAdmin):
         "active",
     ]
     list_editable = ["active"]
+
+    # A default interval, the scope or the active flag moves the due dates of every unit.
+    def save_model(self, request, obj, form, change):  # type: ignore[no-untyped-def]
+        super().save_model(request, obj, form, change)
+        due_refresh_for_intervals()
+
+    def delete_model(self, request, obj):  # type: ignore[no-untyped-def]
+        super().delete_model(request, obj)
+        due_refresh_for_intervals()
+
+    def delete_queryset(self, request, queryset):  # type: ignore[no-untyped-def]
+        super().delete_queryset(request, queryset)
+        due_refresh_for_intervals()
 
 
 @admin.register(StackPreset)
