@@ -238,3 +238,31 @@ SHOP_FORK_SAG = float(env_decimal("SHOP_FORK_SAG", "0.20", minimum=Decimal("0.05
 SHOP_CAVITATION_THRESHOLD_KPA = float(
     env_decimal("SHOP_CAVITATION_THRESHOLD_KPA", "30", minimum=Decimal("0"), maximum=Decimal("101"))
 )
+
+
+# --- The owner's reminders --------------------------------------------------------------------
+def env_int(name: str, default: str, *, minimum: int, maximum: int) -> int:
+    raw = env_str(name, default)
+    try:
+        value = int(raw)
+    except ValueError:
+        raise ImproperlyConfigured(f"{name} must be a whole number, not {raw!r}.") from None
+    if not (minimum <= value <= maximum):
+        raise ImproperlyConfigured(f"{name} must be between {minimum} and {maximum}, not {raw}.")
+    return value
+
+
+# EMAIL_BACKEND and DEFAULT_FROM_EMAIL are above (the console by default); for SMTP set
+# EMAIL_BACKEND=django.core.mail.backends.smtp.EmailBackend and these.
+EMAIL_HOST = env_str("EMAIL_HOST", "localhost")
+EMAIL_PORT = env_int("EMAIL_PORT", "25", minimum=1, maximum=65535)
+EMAIL_HOST_USER = os.environ.get("EMAIL_HOST_USER", "")
+EMAIL_HOST_PASSWORD = os.environ.get("EMAIL_HOST_PASSWORD", "")
+EMAIL_USE_TLS = env_bool("EMAIL_USE_TLS", False)
+EMAIL_TIMEOUT = env_int("EMAIL_TIMEOUT", "30", minimum=1, maximum=600)
+# Where the links in a reminder point (the unsubscribe page): the shop's address as customers reach it.
+SHOP_BASE_URL = env_str("SHOP_BASE_URL", "http://127.0.0.1:8000").rstrip("/")
+# Reminders go for services due within this many days (and for overdue ones not yet reminded).
+SHOP_REMINDER_SOON_DAYS = env_int("SHOP_REMINDER_SOON_DAYS", "30", minimum=0, maximum=365)
+# An unsubscribe link works this long after the reminder that carried it.
+SHOP_UNSUBSCRIBE_MAX_AGE_DAYS = env_int("SHOP_UNSUBSCRIBE_MAX_AGE_DAYS", "365", minimum=1, maximum=3650)

@@ -13,6 +13,7 @@ urlpatterns = [
     path("accounts/", include("shopdesk.accounts.urls")),
     path("calc/", include("shopdesk.calculators.urls")),
     path("stock/", include("shopdesk.stock.urls")),
+    path("owner/", include("shopdesk.owner.urls")),
     path("admin/login/", admin_sign_in, name="admin-sign-in"),
     path("admin/", admin.site.urls),
 ]
