@@ -1,6 +1,6 @@
 from django.urls import path
 
-from shopdesk.owner import views
+from shopdesk.owner import numbers_views, views
 
 app_name = "owner"
 
@@ -10,4 +10,9 @@ urlpatterns = [
     path("wording/", views.wording, name="wording"),
     path("unsubscribe/<str:token>/", views.unsubscribe, name="unsubscribe"),
     path("units/<int:unit_id>/due-dates.ics", views.unit_calendar, name="unit-calendar"),
+]
+
+urlpatterns += [
+    path("numbers/", numbers_views.numbers_page, name="numbers"),
+    path("numbers/<slug:table>.csv", numbers_views.numbers_csv, name="numbers-csv"),
 ]
