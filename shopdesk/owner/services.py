@@ -296,7 +296,7 @@ def reminder_send(
         ).delete()
         raise
     Reminder.objects.filter(pk=claim.pk, claimed_at=claim.claimed_at).update(
-        state=Reminder.State.SENT, sent_at=timezone.now(), sent_by=by
+        state=Reminder.State.SENT, sent_at=now, sent_by=by
     )
     claim.refresh_from_db()
     return claim

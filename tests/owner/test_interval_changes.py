@@ -98,3 +98,16 @@ def test_it_follows_a_spec_sheets_own_interval(client, owner, serviced_unit, ser
     response = client.post(url, data)
     assert response.status_code == 302, response.context and response.context["errors"]
     assert _due(serviced_unit, lowers) == datetime.date(2025, 9, 30)  # 31 March + 6 months, clamped
+
+
+@pytest.mark.django_db
+def test_a_price_change_leaves_the_due_table_alone(client, owner, serviced_unit, service_types) -> None:
+    damper = service_types[1]
+    row = DueService.objects.get(unit=serviced_unit, service_type=damper)
+    client.force_login(owner)
+    url = f"/admin/specs/servicetype/{damper.pk}/change/"
+    data = _form_data(client.get(url).content.decode())
+    data["price"] = ["99.00"]
+    assert client.post(url, data).status_code == 302
+    # Not rebuilt: the row is the same row (a rebuild deletes and writes the unit's rows anew).
+    assert DueService.objects.get(unit=serviced_unit, service_type=damper).pk == row.pk
