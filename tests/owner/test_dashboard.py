@@ -28,10 +28,10 @@ def test_it_lists_overdue_units_latest_first_with_counts(
     client, owner, due_shop, django_assert_max_num_queries
 ) -> None:
     client.force_login(owner)
-    # session, user, permissions (user and groups), then the page (1), the counts (1), the jobs at a
-    # glance (1), low stock shown (1), the filter form's two choice lists (2), the session saved in a
-    # savepoint (3).
-    with django_assert_max_num_queries(13):
+    # session, user, permissions (user and groups), then the page's ids and rows (2), two counts (2), the jobs
+    # at a glance (1), low stock shown (1), the filter form's two choice lists (2), the session saved
+    # in a savepoint (3).
+    with django_assert_max_num_queries(15):
         response = client.get(URL)
     assert response.status_code == 200
     page = response.context["page"]
