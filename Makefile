@@ -54,6 +54,7 @@ lint: setup-dev
 bench: setup-dev
 	$(PY) bench/calc.py
 	$(PY) bench/front_desk.py
+	$(PY) bench/owner.py --units 1500
 
 clean:
 	rm -rf $(VENV) staticfiles var .hypothesis
