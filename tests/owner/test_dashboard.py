@@ -158,3 +158,25 @@ def test_at_a_glance_counts_open_late_and_waiting_work(client, owner, work_order
     glance = client.get(URL).context["glance"]
     assert (glance.open_work, glance.late, glance.waiting_for_parts) == (1, 1, 1)
     assert [part.part_number for part in glance.low_stock] == ["OIL-5WT"] and glance.low_stock_total == 1
+
+
+@pytest.mark.django_db
+def test_htmx_gets_the_list_alone(client, owner, due_shop) -> None:
+    client.force_login(owner)
+    response = client.get(URL, {"consent": "yes"}, headers={"HX-Request": "true"})
+    html = response.content.decode()
+    assert html.lstrip().startswith('<div id="due-list">') and "<h1>" not in html
+    assert "Rider 0" in html and "Rider 1" not in html
+
+
+@pytest.mark.django_db
+@override_settings(EMAIL_BACKEND="tests.owner.test_reminders.FailingAfter")
+def test_a_mail_server_down_is_said_and_nothing_is_recorded(client, owner, due_shop, monkeypatch) -> None:
+    from tests.owner.test_reminders import FailingAfter
+
+    monkeypatch.setattr(FailingAfter, "limit", 0)
+    due = DueService.objects.get(unit=due_shop[0], service_type__name="Lower-leg service")
+    client.force_login(owner)
+    response = client.post(reverse("owner:remind", kwargs={"due_id": due.pk}), follow=True)
+    assert "did not go (ConnectionRefusedError)" in response.content.decode()
+    assert not Reminder.objects.exists()
