@@ -24,7 +24,7 @@ PLACEHOLDERS: dict[str, str] = {
 DEFAULT_SUBJECT = "{service} due for your {unit}"
 DEFAULT_BODY = """Hello {customer},
 
-Your {unit} is due its {service} on {due_date}.
+Your {unit} is due for its {service} (due date: {due_date}).
 
 A service on time keeps the fork or shock working as it should and catches worn seals before they
 cost more. Reply to this email or call us to book it in.
