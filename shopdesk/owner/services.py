@@ -199,12 +199,21 @@ def reminder_message(*, due: DueService, wording_text: tuple[str, str] | None = 
         "shop": settings.SHOP_NAME,
         "unsubscribe_url": url,
     }
-    return EmailMessage(
+    message = EmailMessage(
         subject=" ".join(wording_fill(subject, values).split()),
         body=wording_fill(body, values),
         to=[customer.email],
         headers={"List-Unsubscribe": f"<{url}>"},
     )
+    # The unit's due dates as a calendar file, for the customer to import.
+    from shopdesk.owner.calendar import unit_calendar_render
+
+    rows = (
+        DueService.objects.filter(unit_id=due.unit_id).select_related("service_type").order_by("next_due_on")
+    )
+    filename, _, content = unit_calendar_render(unit=due.unit, rows=rows)
+    message.attach(filename, content.decode(), "text/calendar")
+    return message
 
 
 def reminder_candidates(*, today: datetime.date | None = None, soon_days: int | None = None):  # type: ignore[no-untyped-def]

@@ -51,6 +51,13 @@ def test_it_sends_each_reminder_once_and_nothing_the_second_time(due_shop) -> No
     assert str(due.unit) in first.body and "Lower-leg service" in first.subject
     assert f"{due.next_due_on.day} " in first.body and str(due.next_due_on.year) in first.body
     assert "/owner/unsubscribe/" in first.body and first.extra_headers["List-Unsubscribe"].startswith("<http")
+    # The unit's due dates ride along as a calendar file (read back with icalendar).
+    from icalendar import Calendar
+
+    filename, content, mimetype = first.attachments[0]
+    assert filename.endswith(".ics") and mimetype.startswith("text/calendar")
+    starts = {event.decoded("dtstart") for event in Calendar.from_ical(content).walk("VEVENT")}
+    assert due.next_due_on in starts
 
     call_command("send_service_reminders", stdout=io.StringIO())
     assert len(mail.outbox) == len(expected)  # nothing new
