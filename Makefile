@@ -55,6 +55,7 @@ bench: setup-dev
 	$(PY) bench/calc.py
 	$(PY) bench/front_desk.py
 	$(PY) bench/documents.py
+	$(PY) bench/owner.py --units 1500
 
 clean:
 	rm -rf $(VENV) staticfiles var .hypothesis

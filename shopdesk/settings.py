@@ -241,7 +241,8 @@ SHOP_CAVITATION_THRESHOLD_KPA = float(
 
 # --- Printed documents (job cards, service reports) -------------------------------------------
 # The paper the shop prints on, and the address a job card's QR code points to when it is made
-# without a request (a command, a printer script). Pages use the address they were asked on.
+# without a request (a command, a printer script); reminders' links use it too. Pages use the
+# address they were asked on.
 SHOP_PAPER_SIZE = env_choice("SHOP_PAPER_SIZE", "A4", ("A4", "Letter"))
 SHOP_BASE_URL = env_str("SHOP_BASE_URL", "http://127.0.0.1:8000").rstrip("/")
 if not SHOP_BASE_URL.startswith(("http://", "https://")) or " " in SHOP_BASE_URL:
@@ -251,3 +252,30 @@ if not SHOP_BASE_URL.startswith(("http://", "https://")) or " " in SHOP_BASE_URL
 # Batches of job cards render in a background thread; tests run them in the request instead.
 SHOP_PRINT_IN_BACKGROUND = env_bool("SHOP_PRINT_IN_BACKGROUND", not TESTING)
 PRINT_BATCH_DIR = BASE_DIR / "var" / "print"
+
+# --- The owner's reminders --------------------------------------------------------------------
+def env_int(name: str, default: str, *, minimum: int, maximum: int) -> int:
+    raw = env_str(name, default)
+    try:
+        value = int(raw)
+    except ValueError:
+        raise ImproperlyConfigured(f"{name} must be a whole number, not {raw!r}.") from None
+    if not (minimum <= value <= maximum):
+        raise ImproperlyConfigured(f"{name} must be between {minimum} and {maximum}, not {raw}.")
+    return value
+
+
+# EMAIL_BACKEND and DEFAULT_FROM_EMAIL are above (the console by default); for SMTP set
+# EMAIL_BACKEND=django.core.mail.backends.smtp.EmailBackend and these.
+EMAIL_HOST = env_str("EMAIL_HOST", "localhost")
+EMAIL_PORT = env_int("EMAIL_PORT", "25", minimum=1, maximum=65535)
+EMAIL_HOST_USER = os.environ.get("EMAIL_HOST_USER", "")
+EMAIL_HOST_PASSWORD = os.environ.get("EMAIL_HOST_PASSWORD", "")
+EMAIL_USE_TLS = env_bool("EMAIL_USE_TLS", False)
+EMAIL_TIMEOUT = env_int("EMAIL_TIMEOUT", "30", minimum=1, maximum=600)
+# The links in a reminder (the unsubscribe page) use SHOP_BASE_URL, above: set it to the shop's
+# address as customers reach it.
+# Reminders go for services due within this many days (and for overdue ones not yet reminded).
+SHOP_REMINDER_SOON_DAYS = env_int("SHOP_REMINDER_SOON_DAYS", "30", minimum=0, maximum=365)
+# An unsubscribe link works this long after the reminder that carried it.
+SHOP_UNSUBSCRIBE_MAX_AGE_DAYS = env_int("SHOP_UNSUBSCRIBE_MAX_AGE_DAYS", "365", minimum=1, maximum=3650)

@@ -14,6 +14,7 @@ urlpatterns = [
     path("calc/", include("shopdesk.calculators.urls")),
     path("stock/", include("shopdesk.stock.urls")),
     path("", include("shopdesk.documents.urls")),
+    path("owner/", include("shopdesk.owner.urls")),
     path("admin/login/", admin_sign_in, name="admin-sign-in"),
     path("admin/", admin.site.urls),
 ]

@@ -1,4 +1,5 @@
 from django.contrib import admin
+from django.utils import timezone
 
 from shopdesk.customers.models import Customer, Unit
 
@@ -16,6 +17,12 @@ class CustomerAdmin(admin.ModelAdmin):
     search_fields = ["name", "phone", "email"]
     list_filter = ["reminder_consent"]
     inlines = [UnitInline]
+
+    def save_model(self, request, obj, form, change):  # type: ignore[no-untyped-def]
+        # As customer_save does: consent given or withdrawn is stamped with its moment.
+        if "reminder_consent" in form.changed_data or (not change and obj.reminder_consent):
+            obj.consent_changed_at = timezone.now()
+        super().save_model(request, obj, form, change)
 
 
 @admin.register(Unit)

@@ -29,6 +29,23 @@ def customer_save(*, form: CustomerForm, by: AbstractBaseUser | AnonymousUser | 
     return customer
 
 
+def customer_consent_set(*, customer_id: int, consent: bool) -> Customer | None:
+    """Give or withdraw reminder consent, stamped with its moment; None when the customer is gone.
+
+    A customer whose consent already is ``consent`` keeps the date it was given or withdrawn.
+    """
+    with transaction.atomic():
+        customer = Customer.objects.select_for_update().filter(pk=customer_id).first()
+        if customer is None:
+            return None
+        if customer.reminder_consent != consent:
+            customer.reminder_consent = consent
+            customer.consent_changed_at = timezone.now()
+            customer.full_clean()
+            customer.save(update_fields=["reminder_consent", "consent_changed_at"])
+    return customer
+
+
 def unit_save(*, form: UnitForm, setup: Mapping[str, Any], customer: Customer) -> Unit:
     """Save a unit from a valid form with its current setup."""
     with transaction.atomic():

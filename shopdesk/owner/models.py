@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from django.conf import settings
 from django.db import models
 
 from shopdesk.customers.models import Unit
@@ -28,6 +29,10 @@ class DueService(models.Model):
             models.UniqueConstraint(fields=["unit", "service_type"], name="one_due_date_per_unit_service")
         ]
         indexes = [models.Index(fields=["next_due_on", "id"], name="due_service_by_date")]
+        permissions = [
+            ("view_dashboard", "Can see the owner's dashboard and the shop's numbers"),
+            ("send_reminder", "Can send service reminders"),
+        ]
 
     def __str__(self) -> str:
         return f"{self.unit_id}/{self.service_type_id} due {self.next_due_on}"
@@ -47,6 +52,14 @@ class Reminder(models.Model):
     state = models.CharField(max_length=10, choices=State.choices, default=State.CLAIMED)
     claimed_at = models.DateTimeField()
     sent_at = models.DateTimeField(null=True, blank=True)
+    sent_by = models.ForeignKey(
+        settings.AUTH_USER_MODEL,
+        on_delete=models.PROTECT,
+        null=True,
+        blank=True,
+        related_name="+",
+        help_text="Who pressed “Send reminder”; empty when the nightly command sent it.",
+    )
 
     class Meta:
         constraints = [
@@ -54,6 +67,22 @@ class Reminder(models.Model):
                 fields=["unit", "service_type", "due_on"], name="one_reminder_per_due_date"
             )
         ]
+        indexes = [models.Index(fields=["unit", "-sent_at"], name="reminder_by_unit_sent")]
 
     def __str__(self) -> str:
         return f"reminder {self.unit_id}/{self.service_type_id} {self.due_on} ({self.state})"
+
+
+class MessageWording(models.Model):
+    """The reminder's wording as the owner edited it: one row, with placeholders ``{unit}`` and the like.
+
+    ``owner.wording`` holds the defaults and the placeholders allowed; ``owner.selectors.wording_current``
+    gives the saved wording or the defaults.
+    """
+
+    subject = models.CharField(max_length=200)
+    body = models.TextField(max_length=4000)
+    updated_at = models.DateTimeField(auto_now=True)
+
+    def __str__(self) -> str:
+        return self.subject

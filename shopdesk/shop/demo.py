@@ -31,6 +31,7 @@ from django.utils import timezone
 
 from shopdesk.accounts import roles
 from shopdesk.customers.models import Customer, Unit
+from shopdesk.owner.services import ReminderRefused, due_refresh_all, reminder_send
 from shopdesk.specs.models import Chamber, Oil, ServiceInterval, ServiceType, TorqueValue, UnitModel
 from shopdesk.workshop import flow
 from shopdesk.workshop.models import FinalCheck, SpringRecord, Status, WorkOrder
@@ -110,12 +111,18 @@ def demo_shop_load(
         work_orders = _work_orders_load(
             document["work_orders"], units=units, service_types=service_types, users=users, now=now
         )
+        # Units the shop has never serviced count from their purchase: the whole due table, once.
+        due_refresh_all()
+        reminders = _reminders_load(
+            document.get("reminders", []), units=units, service_types=service_types, now=now
+        )
     counts = {
         "makers": len({model.maker for model in unit_models.values()}),
         "unit models": len(unit_models),
         "customers": len(document["customers"]),
         "units": len(units),
         "work orders": len(work_orders),
+        "reminders sent": len(reminders),
     }
     return DemoResult(loaded=True, users=demo_users, counts=counts)
 
@@ -510,6 +517,45 @@ def _oil_part_for(chamber: Any) -> Any:
 def _final_checks_tick(work_order: WorkOrder, *, by: User, at: datetime.datetime) -> None:
     for check in FinalCheck.objects.filter(work_order=work_order, done_at__isnull=True):
         final_check_set(check=check, done=True, by=by, now=at)
+
+
+# --- Reminders already sent -----------------------------------------------------------------------
+
+
+def _reminders_load(
+    entries: Sequence[Mapping[str, Any]],
+    *,
+    units: Mapping[str, Unit],
+    service_types: Mapping[str, ServiceType],
+    now: datetime.datetime,
+) -> list[Any]:
+    """Reminders sent some days ago, through ``reminder_send`` with a mail backend that sends nothing."""
+    from django.core.mail import get_connection
+
+    from shopdesk.owner.models import DueService
+
+    nowhere = get_connection("django.core.mail.backends.dummy.EmailBackend")
+    sent = []
+    for entry in entries:
+        unit = _named(units, entry["unit"], "unit")
+        service = _named(service_types, entry["service"], "service type")
+        due = (
+            DueService.objects.select_related("unit__customer", "unit__unit_model", "service_type")
+            .filter(unit=unit, service_type=service)
+            .first()
+        )
+        if due is None:
+            raise DemoDocumentError(
+                f"{entry['unit']} is never due a {entry['service']}: no reminder to send."
+            )
+        try:
+            reminder = reminder_send(
+                due=due, connection=nowhere, now=now - datetime.timedelta(days=entry["sent_days_ago"])
+            )
+        except ReminderRefused as refusal:
+            raise DemoDocumentError(f"The reminder for {entry['unit']}: {refusal}") from None
+        sent.append(reminder)
+    return sent
 
 
 # --- Helpers ----------------------------------------------------------------------------------

@@ -177,3 +177,38 @@ def _clean_svg(text: str, *, title: str, id_prefix: str) -> str:
     ET.register_namespace("", SVG_NS)
     ET.register_namespace("xlink", XLINK_NS)
     return ET.tostring(root, encoding="unicode")
+
+
+def bar_plot(
+    labels: Sequence[str],
+    values: Sequence[float],
+    *,
+    y_label: str,
+    title: str,
+    id_prefix: str = "bars",
+    size_in: tuple[float, float] = (6.4, 3.0),
+    every_nth_label: int = 1,
+) -> str:
+    """One bar per label as an SVG string, with the same look and clean-up as :func:`line_plot`.
+
+    ``every_nth_label`` thins the axis labels when there are many bars (weeks of a year).
+    ``title`` becomes the SVG's accessible name.
+    """
+    figure = Figure(figsize=size_in, dpi=100, facecolor="white")
+    figure.subplots_adjust(left=0.11, right=0.98, top=0.95, bottom=0.22)
+    axes = figure.add_subplot()
+    positions = list(range(len(values)))
+    axes.bar(positions, values, color=STYLES["main"]["color"], width=0.8)
+    axes.set_xticks(positions[::every_nth_label], list(labels)[::every_nth_label], rotation=0, fontsize=7)
+    axes.set_ylabel(y_label, fontsize=9, color=MUTED)
+    axes.tick_params(labelsize=8, colors=MUTED)
+    axes.yaxis.set_major_locator(MaxNLocator(nbins=5, steps=[1, 2, 2.5, 5, 10], integer=True))
+    axes.grid(True, axis="y", color=GRID, linewidth=0.6)
+    axes.set_axisbelow(True)
+    for side in ("top", "right"):
+        axes.spines[side].set_visible(False)
+    for side in ("left", "bottom"):
+        axes.spines[side].set_color(GRID)
+    buffer = io.StringIO()
+    figure.savefig(buffer, format="svg", metadata={"Date": None, "Creator": None})
+    return _clean_svg(buffer.getvalue(), title=title, id_prefix=id_prefix)

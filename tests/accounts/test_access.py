@@ -8,7 +8,7 @@ import pytest
 from django.urls import URLPattern, URLResolver, get_resolver, reverse
 
 # Views that anyone may reach without signing in.
-PUBLIC = {"accounts:sign-in"}
+PUBLIC = {"accounts:sign-in", "owner:unsubscribe"}
 
 
 def _walk(resolvers, prefix: str = "", namespace: str | None = None):

@@ -104,3 +104,16 @@ def test_it_follows_a_job_becoming_ready_and_being_cancelled(
     assert set(DueService.objects.filter(unit=work_order.unit).values_list("last_done_on", flat=True)) == {
         None
     }
+
+
+@pytest.mark.django_db
+def test_seed_bulk_fills_the_due_table_as_a_rebuild_would() -> None:
+    from io import StringIO
+
+    from django.core.management import call_command
+
+    call_command("seed_bulk", customers=20, stdout=StringIO())
+    seeded = set(DueService.objects.values_list("unit_id", "service_type_id", "next_due_on"))
+    assert len(seeded) > 20
+    due_refresh_all()
+    assert set(DueService.objects.values_list("unit_id", "service_type_id", "next_due_on")) == seeded
