@@ -201,6 +201,8 @@ LOGGING = {
     "disable_existing_loggers": False,
     "handlers": {"console": {"class": "logging.StreamHandler"}},
     "root": {"handlers": ["console"], "level": env_str("LOG_LEVEL", "INFO")},
+    # WeasyPrint reports each rendering step at INFO: noise on a printer script's terminal.
+    "loggers": {"weasyprint.progress": {"level": "WARNING"}},
 }
 
 # --- The shop ---------------------------------------------------------------------------------

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from decimal import Decimal
+
 import pytest
 from django.core.exceptions import ValidationError
 from django.core.management import CommandError, call_command
@@ -97,3 +99,28 @@ def test_the_owner_edits_the_wording_in_the_admin_and_a_bad_placeholder_is_refus
     response = client.post(url, {"block": "note", "text": "Ride well, {customer}."})
     assert response.status_code == 302
     assert DocumentWording.objects.get().text == "Ride well, {customer}."
+
+
+def test_it_marks_a_service_that_is_already_overdue(ready_work_order, tmp_path):
+    # The job did the lower-leg and damper services; an air-spring service it did not do counts
+    # from the unit's purchase, set five years back, far past its twelve-month interval.
+    import datetime
+
+    from shopdesk.specs.models import ServiceType
+
+    ServiceType.objects.create(
+        name="Air-spring service",
+        scope="air_spring",
+        default_interval_hours=None,
+        default_interval_months=12,
+        price=Decimal("35.00"),
+        labour_minutes=30,
+        display_order=3,
+    )
+    unit = ready_work_order.unit
+    unit.purchased_on = datetime.date.today() - datetime.timedelta(days=5 * 365)
+    unit.save(update_fields=["purchased_on"])
+    statuses = {due.service_type.name: str(due.status) for due in selectors.unit_due_dates(unit)}
+    assert statuses == {"Lower-leg service": "ok", "Damper service": "ok", "Air-spring service": "overdue"}
+    text = pdf_text(render_document(ready_work_order, "service_report").content, tmp_path)
+    assert text.count("overdue: book it in") == 1
