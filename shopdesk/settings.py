@@ -255,6 +255,7 @@ if not SHOP_BASE_URL.startswith(("http://", "https://")) or " " in SHOP_BASE_URL
 SHOP_PRINT_IN_BACKGROUND = env_bool("SHOP_PRINT_IN_BACKGROUND", not TESTING)
 PRINT_BATCH_DIR = BASE_DIR / "var" / "print"
 
+
 # --- The owner's reminders --------------------------------------------------------------------
 def env_int(name: str, default: str, *, minimum: int, maximum: int) -> int:
     raw = env_str(name, default)
