@@ -13,6 +13,7 @@ urlpatterns = [
     path("accounts/", include("shopdesk.accounts.urls")),
     path("calc/", include("shopdesk.calculators.urls")),
     path("stock/", include("shopdesk.stock.urls")),
+    path("safekeeping/", include("shopdesk.safekeeping.urls")),
     path("admin/login/", admin_sign_in, name="admin-sign-in"),
     path("admin/", admin.site.urls),
 ]
