@@ -3,7 +3,7 @@
     .venv/bin/python bench/front_desk.py --customers 1000
     .venv/bin/python bench/front_desk.py --customers 50000 --database-url postgres://postgres@127.0.0.1:5432/shopdesk_bench
 
-Builds a fresh database (a SQLite file in /tmp, or the PostgreSQL database named in the URL,
+Builds a fresh database (a SQLite file in the temporary folder, or the PostgreSQL database named in the URL,
 dropped and made anew), loads the demo shop and ``seed_bulk --customers N`` (N customers,
 1.5 N units, 4 N work orders), then requests each page through Django's test client signed in
 as the role that uses it: the search as typed (htmx), the status board, the bench queue and a
@@ -17,6 +17,7 @@ import argparse
 import os
 import statistics
 import sys
+import tempfile
 import time
 from pathlib import Path
 
@@ -53,7 +54,8 @@ def main() -> None:
     parser.add_argument("--database-url", default="")
     parser.add_argument("--repeats", type=int, default=25)
     args = parser.parse_args()
-    url = args.database_url or f"sqlite:////tmp/shopdesk-bench-{args.customers}.sqlite3"
+    default_file = Path(tempfile.gettempdir()) / f"shopdesk-bench-{args.customers}.sqlite3"
+    url = args.database_url or f"sqlite:///{default_file}"
     _prepare_database(url)
     os.environ["DATABASE_URL"] = url
     os.environ.setdefault("DJANGO_SETTINGS_MODULE", "shopdesk.settings")

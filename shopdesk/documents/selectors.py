@@ -193,7 +193,7 @@ def service_report_context(work_order: WorkOrder, *, today: datetime.date | None
             f"Job {work_order.number} is {work_order.get_status_display().lower()}: the service report "
             "is made once the job is ready for pickup."
         )
-    from shopdesk.workshop.bench_views import _spring_plot  # the job page's own spring curve
+    from shopdesk.workshop.charts import spring_plot  # the job page's own spring curve
 
     unit: Unit = work_order.unit
     unit_model = unit.unit_model
@@ -243,7 +243,7 @@ def service_report_context(work_order: WorkOrder, *, today: datetime.date | None
         "oil": oil,
         "spring_before": springs.get(SpringRecord.Stage.BEFORE),
         "spring_after": springs.get(SpringRecord.Stage.AFTER),
-        "spring_plot": _spring_plot(unit_model, springs),
+        "spring_plot": spring_plot(unit_model, springs),
         "stacks": stacks,
         "parts": parts,
         "price": services.job_price(work_order),

@@ -12,9 +12,8 @@ from django.http import Http404, HttpRequest, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_GET, require_POST
 
-from shopdesk.calc import Q_, CalcInputError
+from shopdesk.calc import Q_
 from shopdesk.calc import oil as oil_calc
-from shopdesk.specs.geometry import air_spring_for
 from shopdesk.specs.models import Chamber
 from shopdesk.workshop import diagnosis, flow, selectors, services
 from shopdesk.workshop.bench_forms import (
@@ -25,6 +24,7 @@ from shopdesk.workshop.bench_forms import (
     VoidForm,
     shop_temperature,
 )
+from shopdesk.workshop.charts import spring_plot
 from shopdesk.workshop.models import (
     FinalCheck,
     LabourEntry,
@@ -162,7 +162,7 @@ def job_context(work_order: WorkOrder, user: Any, overrides: Overrides | None = 
         "voided_oil": [record for record in oil_records if record.is_void],
         "springs": springs,
         "stack_summaries": selectors.stack_summaries(work_order),
-        "spring_plot": _spring_plot(unit_model, live_spring),
+        "spring_plot": spring_plot(unit_model, live_spring),
         "voided_springs": [record for record in spring_records if record.is_void],
         "parts": parts,
         "part_form": overrides.part or PartUsedForm(prefix="part", may_override=may_override),
@@ -176,37 +176,6 @@ def job_context(work_order: WorkOrder, user: Any, overrides: Overrides | None = 
         "can_record": work_order.status in services.bench.RECORDING_STATUSES,
         "shop_temperature_c": shop_temperature().magnitude,
     }
-
-
-def _spring_plot(unit_model: Any, live: dict[str, SpringRecord]) -> str:
-    """Force against travel before and after, on one SVG, when the records hold a pressure."""
-    curves = []
-    for stage, record in sorted(live.items()):
-        if record.positive_pressure_kpa is None:
-            continue
-        spring = air_spring_for(
-            unit_model, spacer_count=record.spacer_count, spacer_volume_cc=record.spacer_volume_cc
-        )
-        if spring is None:
-            continue
-        try:
-            curve = spring.curve(pressure=Q_(record.positive_pressure_kpa, "kPa"), points=61)
-        except CalcInputError:
-            continue
-        label = f"{SpringRecord.Stage(stage).label}: {record.spacer_count or 0} spacers"
-        curves.append(
-            (
-                label,
-                curve.positions.to("mm").magnitude,
-                curve.forces.to("N").magnitude,
-                "main" if stage == "after" else "plain",
-            )
-        )
-    if not curves:
-        return ""
-    from shopdesk.shop.plots import air_spring_plot
-
-    return air_spring_plot(curves=curves)
 
 
 def _render_job(
