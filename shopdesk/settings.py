@@ -94,10 +94,14 @@ INSTALLED_APPS = [
     "shopdesk.calculators",
     "shopdesk.documents",
     "shopdesk.owner",
+    "shopdesk.safekeeping",
+    "axes",
+    "csp",
 ]
 
 MIDDLEWARE = [
     "django.middleware.security.SecurityMiddleware",
+    "csp.middleware.CSPMiddleware",
     "whitenoise.middleware.WhiteNoiseMiddleware",
     "django.contrib.sessions.middleware.SessionMiddleware",
     "django.middleware.common.CommonMiddleware",
@@ -108,6 +112,8 @@ MIDDLEWARE = [
     "django.middleware.clickjacking.XFrameOptionsMiddleware",
     "django_htmx.middleware.HtmxMiddleware",
     "simple_history.middleware.HistoryRequestMiddleware",
+    # Last, as django-axes asks: it turns a locked-out sign-in into the sign-in page's message.
+    "axes.middleware.AxesMiddleware",
 ]
 
 ROOT_URLCONF = "shopdesk.urls"
@@ -185,6 +191,41 @@ DEFAULT_FROM_EMAIL = env_str("DEFAULT_FROM_EMAIL", "workshop@shop.example")
 SESSION_COOKIE_AGE = 10 * 60 * 60  # a working day of idleness ends a session
 SESSION_SAVE_EVERY_REQUEST = True
 SESSION_COOKIE_HTTPONLY = True
+
+# Sign-in throttling (django-axes): a user name from one address is locked after a few failures,
+# so one person's mistakes behind the shop's router cannot lock out everyone; reset on success.
+AUTHENTICATION_BACKENDS = [
+    "axes.backends.AxesStandaloneBackend",
+    "django.contrib.auth.backends.ModelBackend",
+]
+AXES_FAILURE_LIMIT = int(env_str("AXES_FAILURE_LIMIT", "5"))
+AXES_COOLOFF_TIME = 0.25  # hours: fifteen minutes
+AXES_LOCKOUT_PARAMETERS = [["username", "ip_address"]]
+AXES_RESET_ON_SUCCESS = True
+AXES_LOCKOUT_TEMPLATE = "accounts/locked_out.html"
+AXES_IPWARE_PROXY_COUNT = int(env_str("AXES_PROXY_COUNT", "0"))
+
+# Content security policy (django-csp 4): only the shop's own files; no inline script or style,
+# no eval. htmx is told not to add its indicator styles (the htmx-config meta tag in base.html).
+CONTENT_SECURITY_POLICY = {
+    "DIRECTIVES": {
+        "default-src": ["'self'"],
+        "script-src": ["'self'"],
+        "style-src": ["'self'"],
+        "img-src": ["'self'", "data:"],
+        "font-src": ["'self'"],
+        "connect-src": ["'self'"],
+        "object-src": ["'none'"],
+        "base-uri": ["'self'"],
+        "form-action": ["'self'"],
+        "frame-ancestors": ["'none'"],
+    }
+}
+
+# Request size limits: a form of a few hundred fields and 2.5 MB; larger is refused with a 400.
+DATA_UPLOAD_MAX_MEMORY_SIZE = 2_621_440
+DATA_UPLOAD_MAX_NUMBER_FIELDS = 1000
+FILE_UPLOAD_MAX_MEMORY_SIZE = 2_621_440
 CSRF_COOKIE_HTTPONLY = False  # htmx reads no cookie: the token is sent from the page's <body>
 X_FRAME_OPTIONS = "DENY"
 if not DEBUG:

@@ -15,6 +15,7 @@ urlpatterns = [
     path("stock/", include("shopdesk.stock.urls")),
     path("", include("shopdesk.documents.urls")),
     path("owner/", include("shopdesk.owner.urls")),
+    path("safekeeping/", include("shopdesk.safekeeping.urls")),
     path("admin/login/", admin_sign_in, name="admin-sign-in"),
     path("admin/", admin.site.urls),
 ]

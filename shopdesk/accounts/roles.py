@@ -88,7 +88,7 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
     OWNER: ["*"],
 }
 
-OWNER_APPS = ("auth", "customers", "specs", "stock", "workshop", "accounts", "shop", "owner", "documents")
+OWNER_APPS = ("auth", "customers", "specs", "stock", "workshop", "accounts", "shop", "owner", "documents", "safekeeping")
 
 
 def sync_roles(apps: Any, schema_editor: Any = None) -> None:
@@ -96,9 +96,12 @@ def sync_roles(apps: Any, schema_editor: Any = None) -> None:
     from django.contrib.auth.management import create_permissions
 
     for app_config in apps.get_app_configs():
+        # Historical app configs have no models module; put back what was there, so that a call
+        # with the live registry (tests after a flush) leaves dumpdata able to see the models.
+        previous = getattr(app_config, "models_module", None)
         app_config.models_module = True
         create_permissions(app_config, apps=apps, verbosity=0)
-        app_config.models_module = None
+        app_config.models_module = previous
 
     Group = apps.get_model("auth", "Group")
     Permission = apps.get_model("auth", "Permission")
