@@ -172,7 +172,7 @@ USE_I18N = True
 USE_TZ = True
 
 STATIC_URL = "static/"
-STATIC_ROOT = BASE_DIR / "staticfiles"
+STATIC_ROOT = Path(env_str("STATIC_ROOT", str(BASE_DIR / "staticfiles")))  # collectstatic writes here
 STATICFILES_DIRS = [BASE_DIR / "static"]
 STORAGES = {
     "default": {"BACKEND": "django.core.files.storage.FileSystemStorage"},
@@ -203,7 +203,14 @@ AXES_COOLOFF_TIME = 0.25  # hours: fifteen minutes
 AXES_LOCKOUT_PARAMETERS = [["username", "ip_address"]]
 AXES_RESET_ON_SUCCESS = True
 AXES_LOCKOUT_TEMPLATE = "accounts/locked_out.html"
+# The address is REMOTE_ADDR unless the shop runs behind a reverse proxy: then set
+# AXES_META_PRECEDENCE_ORDER=HTTP_X_FORWARDED_FOR,REMOTE_ADDR and have the proxy set
+# X-Forwarded-For to the client's address (django-ipware reads it; AXES_PROXY_COUNT counts the
+# further proxies listed in that header, 0 for one proxy in front). A header that does not
+# match is ignored for REMOTE_ADDR, so a client cannot pick the address it is counted under.
+AXES_IPWARE_META_PRECEDENCE_ORDER = env_list("AXES_META_PRECEDENCE_ORDER", "REMOTE_ADDR")
 AXES_IPWARE_PROXY_COUNT = int(env_str("AXES_PROXY_COUNT", "0"))
+AXES_IPWARE_PROXY_ORDER = "right-most"
 
 # Content security policy (django-csp 4): only the shop's own files; no inline script or style,
 # no eval. htmx is told not to add its indicator styles (the htmx-config meta tag in base.html).
@@ -234,8 +241,13 @@ if not DEBUG:
     SESSION_COOKIE_SECURE = True
     CSRF_COOKIE_SECURE = True
     SECURE_HSTS_SECONDS = int(env_str("SECURE_HSTS_SECONDS", "31536000"))
-    SECURE_HSTS_INCLUDE_SUBDOMAINS = True
-    SECURE_HSTS_PRELOAD = env_bool("SECURE_HSTS_PRELOAD", False)
+    SECURE_HSTS_INCLUDE_SUBDOMAINS = env_bool("SECURE_HSTS_INCLUDE_SUBDOMAINS", True)
+    # The shop's own domain, served only over HTTPS: ask browsers to preload it (security.W021).
+    # A shop on a shared or test domain sets SECURE_HSTS_PRELOAD=false, a decision the deploy
+    # check is then told about instead of warning on every run.
+    SECURE_HSTS_PRELOAD = env_bool("SECURE_HSTS_PRELOAD", True)
+    if not SECURE_HSTS_PRELOAD:
+        SILENCED_SYSTEM_CHECKS = ["security.W021"]
 
 LOGGING = {
     "version": 1,

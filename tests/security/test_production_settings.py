@@ -1,0 +1,117 @@
+"""Production settings: Django's deployment check passes, passwords and sessions are as the shop needs."""
+
+from __future__ import annotations
+
+import os
+import secrets
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+from django.conf import settings
+from django.contrib.auth.password_validation import validate_password
+from django.core.exceptions import ValidationError
+from django.urls import reverse
+
+from tests.conftest import PASSWORD
+
+ROOT = Path(__file__).resolve().parents[2]
+
+
+def _deploy_check(tmp_path, **extra: str) -> subprocess.CompletedProcess:
+    env = {k: v for k, v in os.environ.items() if not k.startswith(("SHOPDESK_", "DJANGO_", "SECURE_"))}
+    env.update(
+        DEBUG="false",
+        SECRET_KEY=secrets.token_urlsafe(50),
+        ALLOWED_HOSTS="shop.example",
+        DATABASE_URL=f"sqlite:///{tmp_path / 'check.sqlite3'}",
+    )
+    env.update(extra)
+    return subprocess.run(
+        [sys.executable, "manage.py", "check", "--deploy", "--fail-level", "WARNING"],
+        cwd=ROOT,
+        env=env,
+        capture_output=True,
+        text=True,
+        timeout=120,
+        check=False,
+    )
+
+
+def test_the_deployment_check_passes_with_production_settings(tmp_path) -> None:
+    result = _deploy_check(tmp_path)
+    assert result.returncode == 0, result.stderr
+    assert "System check identified no issues" in result.stdout
+
+
+def test_the_deployment_check_fails_when_a_production_default_is_turned_off(tmp_path) -> None:
+    # Proves the check above is live: turning HTTPS redirection off is a warning, and warnings fail.
+    result = _deploy_check(tmp_path, SECURE_SSL_REDIRECT="false")
+    assert result.returncode != 0
+    assert "security.W008" in result.stderr
+
+
+def test_production_settings_refuse_a_missing_or_weak_secret_key(tmp_path) -> None:
+    result = _deploy_check(tmp_path, SECRET_KEY="too-short")
+    assert result.returncode != 0
+    assert "SECRET_KEY must be a random string of at least 50 characters" in result.stderr
+
+
+@pytest.mark.parametrize(
+    ("password", "message"),
+    [
+        ("short-pw-9", "at least 12 characters"),
+        ("password1234", "too common"),
+        ("403918275564", "entirely numeric"),
+    ],
+)
+def test_passwords_need_twelve_characters_and_no_common_ones(password: str, message: str) -> None:
+    with pytest.raises(ValidationError) as raised:
+        validate_password(password)
+    assert message in " ".join(raised.value.messages)
+
+
+def test_a_long_uncommon_password_is_accepted() -> None:
+    assert validate_password(PASSWORD) is None
+
+
+def test_a_session_ends_after_a_working_day_of_idleness() -> None:
+    assert settings.SESSION_COOKIE_AGE == 10 * 60 * 60
+    assert settings.SESSION_SAVE_EVERY_REQUEST is True  # counted from the last request, not sign-in
+
+
+@pytest.mark.django_db
+def test_each_request_moves_the_session_expiry_on(client, front_desk) -> None:
+    from datetime import timedelta
+
+    from django.contrib.sessions.models import Session
+    from django.utils import timezone
+
+    client.force_login(front_desk)
+    key = client.session.session_key
+    # Nine hours idle: an hour left. A request then gives it a whole working day again.
+    Session.objects.filter(session_key=key).update(expire_date=timezone.now() + timedelta(hours=1))
+    assert client.get(reverse("shop:home")).status_code == 200
+    left = Session.objects.get(session_key=key).expire_date - timezone.now()
+    assert timedelta(hours=9, minutes=59) < left <= timedelta(hours=10)
+    # Past the expiry the session is gone: the next request is sent to sign in.
+    Session.objects.filter(session_key=key).update(expire_date=timezone.now() - timedelta(seconds=1))
+    response = client.get(reverse("shop:home"))
+    assert response.status_code == 302 and response["Location"].startswith(reverse("accounts:sign-in"))
+
+
+@pytest.mark.django_db
+def test_signing_out_ends_the_session(client, front_desk) -> None:
+    from django.contrib.sessions.models import Session
+
+    client.force_login(front_desk)
+    key = client.session.session_key
+    assert Session.objects.filter(session_key=key).exists()
+    response = client.post(reverse("accounts:sign-out"))
+    assert response.status_code == 302
+    assert not Session.objects.filter(session_key=key).exists()
+    # The old cookie no longer signs anyone in.
+    client.cookies["sessionid"] = key
+    response = client.get(reverse("shop:home"))
+    assert response.status_code == 302 and response["Location"].startswith(reverse("accounts:sign-in"))
