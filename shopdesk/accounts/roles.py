@@ -89,6 +89,8 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
 }
 
 OWNER_APPS = ("auth", "customers", "specs", "stock", "workshop", "accounts", "shop", "owner", "documents", "safekeeping")
+# The sign-in locks of django-axes: the owner sees and clears them.
+OWNER_APPS += ("axes",)
 
 
 def sync_roles(apps: Any, schema_editor: Any = None) -> None:

@@ -1,0 +1,262 @@
+"""Every URL pattern × every role: each gets exactly the access of the role table.
+
+The role table is in DESIGN.md ("Who uses it") and DEVELOPERS.md ("Roles"); ``ACCESS`` below is
+that table, one line per URL name. A URL pattern missing from ``ACCESS`` fails the test: add its
+line when you add a page.
+"""
+
+from __future__ import annotations
+
+import re
+from decimal import Decimal
+
+import pytest
+from django.contrib import admin
+from django.urls import get_resolver, reverse
+
+from tests.accounts.test_access import _walk
+from tests.conftest import finish_bench_work
+
+ANON, DESK, TECH, OWNER = "anonymous", "front_desk", "technician", "owner"
+ROLES = (ANON, DESK, TECH, OWNER)
+STAFF = {DESK, TECH, OWNER}
+BENCH = {TECH, OWNER}
+COUNTER = {DESK, OWNER}
+
+# url name: (method, the roles allowed, the status an allowed role gets). Refused roles get 403;
+# anonymous visitors are sent to sign in (302). GET pages are fetched; POST-only views are sent
+# an empty form, which they refuse with a message (200 re-render, or 302 back to the job).
+ACCESS: dict[str, tuple[str, set[str], int]] = {
+    "shop:home": ("get", STAFF, 200),
+    "accounts:sign-in": ("get", {ANON}, 200),  # public; signed-in users are sent home (302)
+    "accounts:sign-out": ("post", STAFF, 302),
+    "admin-sign-in": ("get", {OWNER}, 302),  # hands the owner on to the admin
+    "admin:login": ("get", {OWNER}, 302),  # the same path as admin-sign-in, which answers it
+    "calculators:index": ("get", BENCH, 200),
+    "customers:search": ("get", STAFF, 200),
+    "customers:customer-new": ("get", COUNTER, 200),
+    "customers:customer": ("get", STAFF, 200),
+    "customers:customer-edit": ("get", COUNTER, 200),
+    "customers:unit-new": ("get", COUNTER, 200),
+    "customers:unit": ("get", STAFF, 200),
+    "customers:unit-edit": ("get", COUNTER, 200),
+    "workshop:check-in": ("get", COUNTER, 200),
+    "workshop:quote": ("post", COUNTER, 200),
+    "workshop:board": ("get", STAFF, 200),
+    "workshop:bench": ("get", BENCH, 200),
+    "workshop:work-order": ("get", STAFF, 200),
+    "workshop:move": ("post", STAFF, 302),
+    "workshop:take": ("post", BENCH, 302),
+    "workshop:oil": ("post", BENCH, 200),
+    "workshop:spring": ("post", BENCH, 200),
+    "workshop:part": ("post", BENCH, 200),
+    "workshop:labour": ("post", BENCH, 200),
+    "workshop:check": ("post", BENCH, 302),
+    "workshop:valve": ("get", STAFF, 200),
+    "workshop:stack": ("post", BENCH, 200),
+    "workshop:stack-library": ("get", STAFF, 200),
+    "workshop:void": ("post", BENCH, 302),
+    "stock:list": ("get", STAFF, 200),
+    "stock:part-new": ("get", {OWNER}, 200),
+    "stock:part": ("get", STAFF, 200),
+    "stock:part-edit": ("get", {OWNER}, 200),
+    "stock:receive": ("get", {OWNER}, 200),
+    "stock:adjust": ("get", {OWNER}, 200),
+    "safekeeping:export": ("get", {OWNER}, 200),
+}
+# The admin (spec sheets, service types and prices, users, sign-in locks) is the owner's: every
+# admin page answers the owner and sends everyone else to sign in, except these, which the
+# admin refuses to everyone: the stock ledger and the sign-in records are written by the shop,
+# never added or deleted by hand, and autocomplete answers only its own widgets' queries.
+ADMIN_REFUSED = {
+    "admin:autocomplete",
+    "admin:stock_stockmovement_add",
+    "admin:stock_stockmovement_delete",
+    "admin:axes_accessattempt_add",
+    "admin:axes_accessfailurelog_add",
+    "admin:axes_accesslog_add",
+}
+
+PATTERNS = sorted({(pattern, name) for pattern, name in _walk(get_resolver().url_patterns)})
+
+
+@pytest.fixture
+def shop(work_order, technician, oil_part):
+    """One of each kind of record, so that every URL can be filled in with a real one."""
+    finish_bench_work(work_order, technician, oil_part)
+    unit = work_order.unit
+    oil_record = work_order.oilrecord_set.first()
+    return {
+        "customer_id": unit.customer_id,
+        "unit_id": unit.pk,
+        "number": work_order.number,
+        "chamber_id": oil_record.chamber_id,
+        "stage": "after",
+        "valve": "rebound",
+        "check_id": work_order.final_checks.first().pk,
+        "kind": "oil",
+        "record_id": oil_record.pk,
+        "part_id": oil_part.pk,
+        "unit_model_id": unit.unit_model_id,
+    }
+
+
+def _is_admin(pattern: str) -> bool:
+    return pattern.startswith("admin/") and not pattern.startswith("admin/login/")
+
+
+def _admin_kwargs(name: str, params: list[str]) -> dict[str, object] | None:
+    """A real object for an admin page's parameters; None when the model has none yet."""
+    kwargs: dict[str, object] = {}
+    for param in params:
+        if param == "app_label":
+            kwargs[param] = name.split(":")[1].split("_")[0] if name != "admin:app_list" else "customers"
+        elif param == "object_id":
+            model = next(
+                (
+                    model
+                    for model in admin.site._registry
+                    if name.startswith(f"admin:{model._meta.app_label}_{model._meta.model_name}_")
+                ),
+                None,
+            )
+            obj = model._default_manager.order_by("pk").first() if model else None
+            if obj is None:
+                return None
+            kwargs[param] = obj.pk
+        else:
+            return None
+    return kwargs
+
+
+def _url(pattern: str, name: str, shop: dict[str, object]) -> str | None:
+    params = re.findall(r"<(?:\w+:)?(\w+)>", pattern) + re.findall(r"\(\?P<(\w+)>", pattern)
+    if _is_admin(pattern):
+        if re.search(r"\((?!\?P<)", pattern):
+            # Positional groups: only django-simple-history's "this version" pages, reached from
+            # the history page that is tried; they are the owner's like the rest of the admin.
+            assert name.endswith("_simple_history"), pattern
+            return None
+        kwargs = _admin_kwargs(name, params)
+        return None if kwargs is None else reverse(name, kwargs=kwargs)
+    return reverse(name, kwargs={param: shop[param] for param in params})
+
+
+def test_every_url_pattern_has_a_line_in_the_table() -> None:
+    missing = [
+        f"{pattern} ({name})" for pattern, name in PATTERNS if not _is_admin(pattern) and name not in ACCESS
+    ]
+    assert not missing, "add these to ACCESS in tests/security/test_matrix.py:\n" + "\n".join(missing)
+    stale = set(ACCESS) - {name for _, name in PATTERNS}
+    assert not stale, f"ACCESS names URLs that no longer exist: {stale}"
+
+
+@pytest.mark.django_db
+@pytest.mark.parametrize("role", ROLES)
+def test_each_role_gets_exactly_the_access_of_the_role_table(client, role_users, shop, role) -> None:
+    wrong = []
+    for pattern, name in PATTERNS:
+        if name is None:
+            continue  # the admin's unnamed redirects; every named admin page is tried below
+        if role != ANON:
+            client.force_login(role_users[role])  # again: the sign-out row signs out
+        url = _url(pattern, name, shop)
+        if url is None:
+            continue  # an admin object page of a model with no rows yet
+        if _is_admin(pattern):
+            response = client.get(url)
+            if role == OWNER:
+                if name in ADMIN_REFUSED:
+                    ok = response.status_code == 403
+                elif name == "admin:logout":
+                    ok = response.status_code == 405  # signing out is a POST
+                else:
+                    ok = response.status_code in {200, 302}
+                    ok = ok and not (response.status_code == 302 and "/login/" in response["Location"])
+            else:
+                # To sign in, or (signing out of an admin they are not in) to the admin's door.
+                ok = response.status_code == 302 and (
+                    response["Location"].startswith(("/admin/login/", reverse("accounts:sign-in")))
+                    or (name == "admin:logout" and response["Location"] == reverse("admin:index"))
+                )
+            if not ok:
+                wrong.append(f"{name} {url}: {response.status_code} {response.get('Location', '')}")
+            continue
+        method, allowed, status = ACCESS[name]
+        response = getattr(client, method)(url, {})
+        if role in allowed:
+            expected = status
+        elif role == ANON:
+            expected = 302
+        elif name == "accounts:sign-in":
+            expected = 302  # already signed in: sent on
+        else:
+            expected = 403
+        got = response.status_code
+        if got != expected:
+            wrong.append(f"{method.upper()} {url} ({name}): {got}, table says {expected}")
+        elif (
+            got == 302
+            and role == ANON
+            and role not in allowed
+            and not response["Location"].startswith(reverse("accounts:sign-in"))
+        ):
+            wrong.append(f"{url}: anonymous sent to {response['Location']}")
+    assert not wrong, f"{role}:\n" + "\n".join(wrong)
+
+
+# What each kind of record shows on its pages (the conftest fixtures' values), to look for it
+# where it must not appear.
+MARKERS = {
+    "customer_id": "Ada Marsh",
+    "unit_id": "RF34-0001",
+    "part_id": "OIL-5WT",
+    "unit_model_id": "Ridge 34",
+}
+
+
+@pytest.mark.django_db
+def test_guessed_ids_and_ids_of_another_record_type_show_nothing(client, owner, shop) -> None:
+    from shopdesk.customers.models import Customer, Unit
+    from shopdesk.specs.models import UnitModel
+    from shopdesk.stock.models import Part
+
+    # More parts and units, so that their ids are not also a customer's or a spec sheet's.
+    for n in range(3):
+        Part.objects.create(
+            part_number=f"SEAL-{n}",
+            name=f"Dust seal {n}",
+            kind=Part.Kind.PART,
+            cost=Decimal("2"),
+            price=Decimal("6"),
+        )
+    models_of = {"customer_id": Customer, "unit_id": Unit, "part_id": Part, "unit_model_id": UnitModel}
+    client.force_login(owner)  # every permission: a 404 here is the record's absence, not the role
+    tried = 0
+    for pattern, name in PATTERNS:
+        if name is None or _is_admin(pattern) or ACCESS[name][0] != "get":
+            continue
+        params = re.findall(r"<(?:\w+:)?(\w+)>", pattern)
+        for param in params:
+            if param == "number":
+                guesses = {"2099-9999": None, "OIL-5WT": "part_id", str(shop["customer_id"]): "customer_id"}
+            elif param in models_of:
+                guesses = {"987654": None}
+                for other, value in shop.items():
+                    taken = models_of[param].objects.filter(pk=value).exists() if other in models_of else True
+                    if other != param and not taken:
+                        guesses[str(value)] = other
+            else:
+                continue
+            for guess, other in guesses.items():
+                kwargs = {p: shop[p] for p in params}
+                kwargs[param] = guess
+                url = reverse(name, kwargs=kwargs)
+                response = client.get(url)
+                tried += 1
+                assert response.status_code == 404, f"{url} ({name}) answered {response.status_code}"
+                page = response.content.decode()
+                assert "There is no such page or record" in page, url
+                if other is not None:
+                    assert MARKERS[other] not in page, f"{url} shows the {other} record's data"
+    assert tried >= 15, tried
