@@ -95,3 +95,62 @@ def test_the_owner_downloads_everything_as_csv_files(client, role_users, work_or
     } <= names
     jobs = archive.read("workshop_workorder.csv").decode().splitlines()
     assert len(jobs) == 2 and work_order.number in jobs[1]
+
+
+def _require_pg_tools() -> None:
+    import os
+    import shutil
+
+    missing = [tool for tool in ("pg_dump", "pg_restore") if shutil.which(tool) is None]
+    if missing:
+        message = f"{' and '.join(missing)} not on PATH (install PostgreSQL's client tools)"
+        if os.environ.get("CI") == "true":
+            pytest.fail(message)
+        pytest.skip(message)
+
+
+@pytest.mark.django_db(transaction=True)
+def test_a_pg_dump_backup_restores_every_row_into_an_empty_database(
+    tmp_path, work_order, technician, oil_part
+) -> None:
+    import psycopg
+
+    from tests.conftest import skip_unless_postgresql
+
+    skip_unless_postgresql()
+    _require_pg_tools()
+    finish_bench_work(work_order, technician, oil_part)
+    before = _rows_live()
+    assert before["workshop_historicaloilrecord"], "the bench record left no history to compare"
+    copy = tmp_path / "shop.dump"
+    call_command("backup_shop", str(copy))
+    assert copy.read_bytes().startswith(b"PGDMP")
+
+    live = connection.settings_dict
+    scratch = f"{live['NAME']}_restore"  # beside this run's own test database
+    server = {
+        "host": live["HOST"] or "127.0.0.1",
+        "port": live["PORT"] or 5432,
+        "user": live["USER"] or "postgres",
+        "password": live["PASSWORD"] or None,
+    }
+    with psycopg.connect(dbname="postgres", autocommit=True, **server) as admin:
+        admin.execute(f'DROP DATABASE IF EXISTS "{scratch}"')
+        admin.execute(f'CREATE DATABASE "{scratch}"')
+    try:
+        url = f"postgres://{server['user']}@{server['host']}:{server['port']}/{scratch}"
+        call_command("restore_shop", str(copy), database_url=url, yes=True)
+        with psycopg.connect(dbname=scratch, **server) as restored:
+            for table, rows in before.items():
+                got = [tuple(r) for r in restored.execute(f'SELECT * FROM "{table}" ORDER BY 1').fetchall()]
+                assert got == rows, table
+            tables = {
+                r[0]
+                for r in restored.execute(
+                    "SELECT tablename FROM pg_tables WHERE schemaname = 'public'"
+                ).fetchall()
+            }
+        assert tables == set(before)
+    finally:
+        with psycopg.connect(dbname="postgres", autocommit=True, **server) as admin:
+            admin.execute(f'DROP DATABASE IF EXISTS "{scratch}"')
