@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import math
 import re
+import tokenize
 from typing import Any
 
 import pint
@@ -74,7 +75,18 @@ def parse_quantity(text: str, *, default_unit: str, dimension: str) -> pint.Quan
     unit = unit_text or default_unit
     try:
         quantity = Q_(magnitude, ureg.parse_units(unit))
-    except (pint.errors.PintError, AttributeError, TypeError, ValueError, SyntaxError):
+    except (
+        pint.errors.PintError,
+        AttributeError,
+        TypeError,
+        ValueError,
+        SyntaxError,
+        # pint's unit parser also fails with these on unbalanced or stray characters
+        AssertionError,
+        tokenize.TokenError,
+        KeyError,
+        IndexError,
+    ):
         raise CalcInputError(f"“{unit_text}” is not a unit ShopDesk knows.") from None
     if not quantity.check(dimension):
         raise CalcInputError(

@@ -33,7 +33,9 @@ def search(request: HttpRequest) -> HttpResponse:
 @require_http_methods(["GET", "POST"])
 @permission_required("customers.add_customer", raise_exception=True)
 def customer_new(request: HttpRequest) -> HttpResponse:
-    form = CustomerForm(request.POST or None, initial={"name": request.GET.get("name", "")})
+    form = CustomerForm(
+        request.POST if request.method == "POST" else None, initial={"name": request.GET.get("name", "")}
+    )
     if request.method == "POST" and form.is_valid():
         customer = services.customer_save(form=form, by=request.user)
         messages.success(request, f"{customer.name} added. Now add their fork or shock.")
@@ -62,7 +64,7 @@ def customer_detail(request: HttpRequest, customer_id: int) -> HttpResponse:
 @permission_required("customers.change_customer", raise_exception=True)
 def customer_edit(request: HttpRequest, customer_id: int) -> HttpResponse:
     customer = get_object_or_404(Customer, pk=customer_id)
-    form = CustomerForm(request.POST or None, instance=customer)
+    form = CustomerForm(request.POST if request.method == "POST" else None, instance=customer)
     if request.method == "POST" and form.is_valid():
         services.customer_save(form=form, by=request.user)
         messages.success(request, "Customer saved.")

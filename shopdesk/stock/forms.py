@@ -33,7 +33,12 @@ def read_stock_quantity(text: str, unit_of_measure: str) -> Decimal:
         except CalcInputError as error:
             raise forms.ValidationError(str(error), code="invalid") from None
         magnitude = float(volume.to("mL").magnitude)
-        return Decimal(str(magnitude)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
+        try:
+            return Decimal(str(magnitude)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
+        except InvalidOperation:  # more digits than a quantity holds (or not a number at all)
+            raise forms.ValidationError(
+                f"“{text}” is far more than any delivery or fill: check the number.", code="invalid"
+            ) from None
     cleaned = text.removesuffix("each").removesuffix("ea").strip().replace(",", ".")
     try:
         number = Decimal(cleaned)

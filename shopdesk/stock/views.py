@@ -71,7 +71,7 @@ def part_detail(request: HttpRequest, part_id: int) -> HttpResponse:
 @require_http_methods(["GET", "POST"])
 @permission_required("stock.add_part", raise_exception=True)
 def part_new(request: HttpRequest) -> HttpResponse:
-    form = PartForm(request.POST or None)
+    form = PartForm(request.POST if request.method == "POST" else None)
     if request.method == "POST" and form.is_valid():
         try:
             part = services.part_save(part=form.save(commit=False), by=request.user)
@@ -88,7 +88,7 @@ def part_new(request: HttpRequest) -> HttpResponse:
 def part_edit(request: HttpRequest, part_id: int) -> HttpResponse:
     part = _part(part_id)
     # The form changes its own copy, so that the page's heading keeps the stored values.
-    form = PartForm(request.POST or None, instance=Part.objects.get(pk=part.pk))
+    form = PartForm(request.POST if request.method == "POST" else None, instance=Part.objects.get(pk=part.pk))
     if request.method == "POST" and form.is_valid():
         try:
             saved = services.part_save(part=form.save(commit=False), by=request.user)
@@ -104,7 +104,7 @@ def part_edit(request: HttpRequest, part_id: int) -> HttpResponse:
 @permission_required("stock.receive_stock", raise_exception=True)
 def part_receive(request: HttpRequest, part_id: int) -> HttpResponse:
     part = _part(part_id)
-    form = ReceiveForm(request.POST or None, part=part)
+    form = ReceiveForm(request.POST if request.method == "POST" else None, part=part)
     if request.method == "POST" and form.is_valid():
         try:
             movement = services.stock_receive(
@@ -131,7 +131,7 @@ def part_receive(request: HttpRequest, part_id: int) -> HttpResponse:
 @permission_required("stock.adjust_stock", raise_exception=True)
 def part_adjust(request: HttpRequest, part_id: int) -> HttpResponse:
     part = _part(part_id)
-    form = AdjustForm(request.POST or None, part=part)
+    form = AdjustForm(request.POST if request.method == "POST" else None, part=part)
     if request.method == "POST" and form.is_valid():
         try:
             movement = services.stock_adjust(

@@ -50,7 +50,11 @@ def test_it_refuses_a_mass_typed_as_a_pressure():
         parse_quantity("85 kg", default_unit="psi", dimension="[pressure]")
 
 
-@pytest.mark.parametrize("text", ["", "   ", "psi 85", "nan psi", "85 furlongs-per-what"])
+@pytest.mark.parametrize(
+    "text",
+    # The last five once escaped pint's unit parser as AssertionError or tokenize.TokenError.
+    ["", "   ", "psi 85", "nan psi", "85 furlongs-per-what", "2¥\x94", "5 (", "5 )", '5 "', "5 psi)"],
+)
 def test_it_refuses_unreadable_text(text):
     with pytest.raises(CalcInputError):
         parse_quantity(text, default_unit="psi", dimension="[pressure]")
