@@ -48,6 +48,17 @@ def env_choice(name: str, default: str, choices: tuple[str, ...]) -> str:
     return value
 
 
+def env_int(name: str, default: str, *, minimum: int, maximum: int) -> int:
+    raw = env_str(name, default)
+    try:
+        value = int(raw)
+    except ValueError:
+        raise ImproperlyConfigured(f"{name} must be a whole number, not {raw!r}.") from None
+    if not (minimum <= value <= maximum):
+        raise ImproperlyConfigured(f"{name} must be between {minimum} and {maximum}, not {raw}.")
+    return value
+
+
 def env_decimal(name: str, default: str, *, minimum: Decimal, maximum: Decimal) -> Decimal:
     raw = env_str(name, default)
     try:
@@ -139,7 +150,7 @@ TEMPLATES = [
 DATABASES = {
     "default": dj_database_url.parse(
         env_str("DATABASE_URL", f"sqlite:///{BASE_DIR / 'shopdesk.sqlite3'}"),
-        conn_max_age=int(env_str("DATABASE_CONN_MAX_AGE", "0")),
+        conn_max_age=env_int("DATABASE_CONN_MAX_AGE", "0", minimum=0, maximum=86400),
     )
 }
 if DATABASES["default"]["ENGINE"] == "django.db.backends.sqlite3":
@@ -198,7 +209,7 @@ AUTHENTICATION_BACKENDS = [
     "axes.backends.AxesStandaloneBackend",
     "django.contrib.auth.backends.ModelBackend",
 ]
-AXES_FAILURE_LIMIT = int(env_str("AXES_FAILURE_LIMIT", "5"))
+AXES_FAILURE_LIMIT = env_int("AXES_FAILURE_LIMIT", "5", minimum=1, maximum=100)
 AXES_COOLOFF_TIME = 0.25  # hours: fifteen minutes
 AXES_LOCKOUT_PARAMETERS = [["username", "ip_address"]]
 AXES_RESET_ON_SUCCESS = True
@@ -209,7 +220,7 @@ AXES_LOCKOUT_TEMPLATE = "accounts/locked_out.html"
 # further proxies listed in that header, 0 for one proxy in front). A header that does not
 # match is ignored for REMOTE_ADDR, so a client cannot pick the address it is counted under.
 AXES_IPWARE_META_PRECEDENCE_ORDER = env_list("AXES_META_PRECEDENCE_ORDER", "REMOTE_ADDR")
-AXES_IPWARE_PROXY_COUNT = int(env_str("AXES_PROXY_COUNT", "0"))
+AXES_IPWARE_PROXY_COUNT = env_int("AXES_PROXY_COUNT", "0", minimum=0, maximum=10)
 AXES_IPWARE_PROXY_ORDER = "right-most"
 
 # Content security policy (django-csp 4): only the shop's own files; no inline script or style,
@@ -240,7 +251,7 @@ if not DEBUG:
     SECURE_SSL_REDIRECT = env_bool("SECURE_SSL_REDIRECT", True)
     SESSION_COOKIE_SECURE = True
     CSRF_COOKIE_SECURE = True
-    SECURE_HSTS_SECONDS = int(env_str("SECURE_HSTS_SECONDS", "31536000"))
+    SECURE_HSTS_SECONDS = env_int("SECURE_HSTS_SECONDS", "31536000", minimum=0, maximum=63072000)
     SECURE_HSTS_INCLUDE_SUBDOMAINS = env_bool("SECURE_HSTS_INCLUDE_SUBDOMAINS", True)
     # The shop's own domain, served only over HTTPS: ask browsers to preload it (security.W021).
     # A shop on a shared or test domain sets SECURE_HSTS_PRELOAD=false, a decision the deploy
@@ -255,7 +266,8 @@ LOGGING = {
     "handlers": {"console": {"class": "logging.StreamHandler"}},
     "root": {"handlers": ["console"], "level": env_str("LOG_LEVEL", "INFO")},
     # WeasyPrint reports each rendering step at INFO: noise on a printer script's terminal.
-    "loggers": {"weasyprint.progress": {"level": "WARNING"}},
+    # django-axes logs every sign-in at INFO; failures and lock-outs come at WARNING.
+    "loggers": {"weasyprint.progress": {"level": "WARNING"}, "axes": {"level": "WARNING"}},
 }
 
 # --- The shop ---------------------------------------------------------------------------------
@@ -310,17 +322,6 @@ PRINT_BATCH_DIR = BASE_DIR / "var" / "print"
 
 
 # --- The owner's reminders --------------------------------------------------------------------
-def env_int(name: str, default: str, *, minimum: int, maximum: int) -> int:
-    raw = env_str(name, default)
-    try:
-        value = int(raw)
-    except ValueError:
-        raise ImproperlyConfigured(f"{name} must be a whole number, not {raw!r}.") from None
-    if not (minimum <= value <= maximum):
-        raise ImproperlyConfigured(f"{name} must be between {minimum} and {maximum}, not {raw}.")
-    return value
-
-
 # EMAIL_BACKEND and DEFAULT_FROM_EMAIL are above (the console by default); for SMTP set
 # EMAIL_BACKEND=django.core.mail.backends.smtp.EmailBackend and these.
 EMAIL_HOST = env_str("EMAIL_HOST", "localhost")

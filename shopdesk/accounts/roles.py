@@ -88,9 +88,19 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
     OWNER: ["*"],
 }
 
-OWNER_APPS = ("auth", "customers", "specs", "stock", "workshop", "accounts", "shop", "owner", "documents", "safekeeping")
-# The sign-in locks of django-axes: the owner sees and clears them.
-OWNER_APPS += ("axes",)
+OWNER_APPS = (
+    "auth",
+    "customers",
+    "specs",
+    "stock",
+    "workshop",
+    "accounts",
+    "shop",
+    "owner",
+    "documents",
+    "safekeeping",
+    "axes",  # the sign-in locks of django-axes: the owner sees and clears them
+)
 
 
 def sync_roles(apps: Any, schema_editor: Any = None) -> None:

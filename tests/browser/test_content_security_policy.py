@@ -5,6 +5,7 @@ from __future__ import annotations
 import pytest
 from django.urls import reverse
 
+from shopdesk.owner.services import due_refresh, unsubscribe_token
 from tests.browser.conftest import sign_in
 from tests.conftest import PASSWORD
 
@@ -29,6 +30,7 @@ def test_no_main_page_breaks_the_policy(page, owner, work_order, oil_part) -> No
     sign_in(page, "owner", PASSWORD)
 
     unit = work_order.unit
+    due_refresh(unit=unit)  # the dashboard and the wording preview have a row to show
     pages = [
         reverse("shop:home"),
         reverse("customers:search") + "?q=Ada",
@@ -44,6 +46,15 @@ def test_no_main_page_breaks_the_policy(page, owner, work_order, oil_part) -> No
         reverse("stock:part", kwargs={"part_id": oil_part.pk}),
         reverse("calculators:index"),
         reverse("customers:customer-new"),
+        reverse("customers:unit-new", kwargs={"customer_id": unit.customer_id}),
+        reverse("workshop:valve", kwargs={"number": work_order.number, "valve": "rebound"}),
+        reverse("workshop:stack-library", kwargs={"unit_model_id": unit.unit_model_id}),
+        reverse("stock:part-new"),
+        reverse("documents:batch-new"),
+        reverse("owner:dashboard"),
+        reverse("owner:numbers"),
+        reverse("owner:wording"),
+        reverse("owner:unsubscribe", kwargs={"token": unsubscribe_token(customer_id=unit.customer_id)}),
     ]
     for url in pages:
         response = page.goto(url)

@@ -63,13 +63,28 @@ ACCESS: dict[str, tuple[str, set[str], int]] = {
     "stock:receive": ("get", {OWNER}, 200),
     "stock:adjust": ("get", {OWNER}, 200),
     "safekeeping:export": ("get", {OWNER}, 200),
+    "documents:job-card": ("get", STAFF, 200),
+    # The fixture's job is not ready yet: back to the job page, which says so.
+    "documents:service-report": ("get", COUNTER, 302),
+    "documents:batch-new": ("get", STAFF, 200),
+    "documents:batch": ("get", STAFF, 200),
+    "documents:batch-file": ("get", STAFF, 200),
+    "owner:dashboard": ("get", {OWNER}, 200),
+    "owner:remind": ("post", {OWNER}, 302),
+    "owner:wording": ("get", {OWNER}, 200),
+    "owner:unsubscribe": ("get", {ANON, DESK, TECH, OWNER}, 200),  # public: a reminder's link
+    "owner:unit-calendar": ("get", STAFF, 200),
+    "owner:numbers": ("get", {OWNER}, 200),
+    "owner:numbers-csv": ("get", {OWNER}, 200),
 }
 # The admin (spec sheets, service types and prices, users, sign-in locks) is the owner's: every
 # admin page answers the owner and sends everyone else to sign in, except these, which the
-# admin refuses to everyone: the stock ledger and the sign-in records are written by the shop,
-# never added or deleted by hand, and autocomplete answers only its own widgets' queries.
+# admin refuses to everyone: the stock ledger, the print batches and the sign-in records are
+# written by the shop, never added or deleted by hand, and autocomplete answers only its own
+# widgets' queries.
 ADMIN_REFUSED = {
     "admin:autocomplete",
+    "admin:documents_printbatch_add",
     "admin:stock_stockmovement_add",
     "admin:stock_stockmovement_delete",
     "admin:axes_accessattempt_add",
@@ -81,12 +96,35 @@ PATTERNS = sorted({(pattern, name) for pattern, name in _walk(get_resolver().url
 
 
 @pytest.fixture
-def shop(work_order, technician, oil_part):
+def shop(work_order, technician, front_desk, oil_part, settings, tmp_path):
     """One of each kind of record, so that every URL can be filled in with a real one."""
+    from django.utils import timezone
+
+    from shopdesk.documents.models import PrintBatch
+    from shopdesk.documents.services import batch_path
+    from shopdesk.owner.models import DueService
+    from shopdesk.owner.services import due_refresh, unsubscribe_token
+
     finish_bench_work(work_order, technician, oil_part)
     unit = work_order.unit
     oil_record = work_order.oilrecord_set.first()
+    settings.PRINT_BATCH_DIR = tmp_path / "print"
+    batch = PrintBatch.objects.create(
+        created_at=timezone.now(),
+        created_by=front_desk,
+        numbers=[work_order.number],
+        base_url="http://testserver/",
+        state=PrintBatch.State.DONE,
+        done_count=1,
+    )
+    batch_path(batch).parent.mkdir(parents=True)
+    batch_path(batch).write_bytes(b"%PDF-1.7 a batch")
+    due_refresh(unit=unit)
     return {
+        "batch_id": batch.pk,
+        "due_id": DueService.objects.filter(unit=unit).values_list("pk", flat=True).first(),
+        "token": unsubscribe_token(customer_id=unit.customer_id),
+        "table": "parts",
         "customer_id": unit.customer_id,
         "unit_id": unit.pk,
         "number": work_order.number,
