@@ -209,7 +209,7 @@ AUTHENTICATION_BACKENDS = [
     "axes.backends.AxesStandaloneBackend",
     "django.contrib.auth.backends.ModelBackend",
 ]
-AXES_FAILURE_LIMIT = env_int("AXES_FAILURE_LIMIT", "5", minimum=1, maximum=100)
+AXES_FAILURE_LIMIT = env_int("AXES_FAILURE_LIMIT", "5", minimum=1, maximum=10_000)
 AXES_COOLOFF_TIME = 0.25  # hours: fifteen minutes
 AXES_LOCKOUT_PARAMETERS = [["username", "ip_address"]]
 AXES_RESET_ON_SUCCESS = True

@@ -8,6 +8,7 @@ with pint (``shopdesk.calc.units``); pages show values in the shop's display uni
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from decimal import Decimal
 from typing import Any
@@ -55,12 +56,22 @@ def unit_label(unit: str) -> str:
     return _LABELS.get(unit, unit)
 
 
+@functools.cache
+def _linear_map(stored_unit: str, unit: str) -> tuple[float, float]:
+    """(scale, offset) taking ``stored_unit`` to ``unit``, read off pint once per pair: every
+    unit the app shows is a linear (or, for temperatures, affine) map of its stored one, and
+    parsing the units on each value cost a job page tens of milliseconds."""
+    target = _PINT_NAMES.get(unit, unit)
+    offset = float(Q_(0.0, stored_unit).to(target).magnitude)
+    return float(Q_(1.0, stored_unit).to(target).magnitude) - offset, offset
+
+
 def to_display(value: float | Decimal | None, kind: Kind, unit: str | None = None) -> float | None:
     """A stored value converted to the display unit (or ``unit``), as a float."""
     if value is None:
         return None
-    unit = unit or kind.display_unit
-    return float(Q_(float(value), kind.stored_unit).to(_PINT_NAMES.get(unit, unit)).magnitude)
+    scale, offset = _linear_map(kind.stored_unit, unit or kind.display_unit)
+    return float(value) * scale + offset
 
 
 def format_quantity(value: float | Decimal | None, kind: Kind, unit: str | None = None) -> str:

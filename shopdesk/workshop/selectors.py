@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import datetime
 import re
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
 from urllib.parse import urlsplit
@@ -30,6 +31,7 @@ class BoardColumn:
     status: Status
     jobs: list[WorkOrder] = field(default_factory=list)
     total: int = 0
+    moves: list[flow.Move] = field(default_factory=list)  # the board's buttons on each job here
 
 
 def open_work_orders() -> QuerySet[WorkOrder]:
@@ -38,11 +40,25 @@ def open_work_orders() -> QuerySet[WorkOrder]:
     )
 
 
-def status_board(*, today: datetime.date | None = None) -> list[BoardColumn]:
+def status_board(
+    *, today: datetime.date | None = None, may: Callable[[str], bool] = lambda permission: True
+) -> list[BoardColumn]:
     """Open jobs grouped by status, oldest promise first; each column shows at most
-    ``BOARD_LIMIT_PER_STATUS`` jobs and counts the rest. Two queries whatever the shop's size."""
+    ``BOARD_LIMIT_PER_STATUS`` jobs and counts the rest. Two queries whatever the shop's size.
+    Each column carries the moves out of its status that ``may`` (a user's ``has_perm``) allows;
+    cancelling is done from the job page, not the board."""
     today = today or timezone.localdate()
-    columns = {status: BoardColumn(status=status) for status in OPEN_STATUSES}
+    columns = {
+        status: BoardColumn(
+            status=status,
+            moves=[
+                move
+                for move in flow.moves_from(status)
+                if move.target != Status.CANCELLED and any(may(name) for name in move.permissions)
+            ],
+        )
+        for status in OPEN_STATUSES
+    }
     counts = WorkOrder.objects.filter(status__in=OPEN_STATUSES).values_list("status").order_by()
     for status, total in counts.annotate(total=Count("id")):
         columns[Status(status)].total = total
@@ -60,7 +76,6 @@ def status_board(*, today: datetime.date | None = None) -> list[BoardColumn]:
     )
     for job in ranked:
         job.is_late = job.promised_on is not None and job.promised_on < today
-        job.moves = flow.moves_from(job.status)
         columns[Status(job.status)].jobs.append(job)
     return list(columns.values())
 

@@ -75,7 +75,7 @@ def quote(request: HttpRequest) -> HttpResponse:
 @require_GET
 @permission_required("workshop.view_workorder", raise_exception=True)
 def status_board(request: HttpRequest) -> HttpResponse:
-    columns = selectors.status_board()
+    columns = selectors.status_board(may=request.user.has_perm)
     template = "workshop/board.html#board" if request.htmx else "workshop/board.html"
     return render(request, template, {"columns": columns})
 
