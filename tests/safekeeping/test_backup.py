@@ -83,6 +83,7 @@ def test_the_owner_downloads_everything_as_csv_files(client, role_users, work_or
         client.force_login(role_users[role])
         assert client.get(url).status_code == 403, role
     client.force_login(role_users["owner"])
+    assert f'href="{url}"' in client.get(reverse("owner:dashboard")).content.decode()  # found from there
     response = client.get(url)
     assert response.status_code == 200
     archive = zipfile.ZipFile(BytesIO(response.content))
@@ -91,6 +92,8 @@ def test_the_owner_downloads_everything_as_csv_files(client, role_users, work_or
         "customers_customer.csv",
         "customers_unit.csv",
         "workshop_workorder.csv",
+        "workshop_oilrecord.csv",
+        "workshop_partused.csv",
         "stock_part.csv",
     } <= names
     jobs = archive.read("workshop_workorder.csv").decode().splitlines()
