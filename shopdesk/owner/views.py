@@ -80,7 +80,10 @@ def remind(request: HttpRequest, due_id: int) -> HttpResponse:
 @permission_required("owner.change_messagewording", raise_exception=True)
 def wording(request: HttpRequest) -> HttpResponse:
     current = selectors.wording_current()
-    form = WordingForm(request.POST or None, initial={"subject": current.subject, "body": current.body})
+    form = WordingForm(
+        request.POST if request.method == "POST" else None,  # an empty post is checked, not ignored
+        initial={"subject": current.subject, "body": current.body},
+    )
     if request.method == "POST" and form.is_valid():
         services.wording_save(subject=form.cleaned_data["subject"], body=form.cleaned_data["body"])
         messages.success(request, "The reminder's wording is saved; the next reminders use it.")
