@@ -18,8 +18,16 @@ from shopdesk.workshop.models import OilRecord, SpringRecord
 _PINT = {"fl oz": "fluid_ounce"}
 
 
+STALE_FORM = "This form was changed or is from an old page: reload the job page and enter the values again."
+
+
 class VersionedForm(forms.Form):
-    version = forms.IntegerField(widget=forms.HiddenInput, required=False, min_value=1)
+    version = forms.IntegerField(
+        widget=forms.HiddenInput,
+        required=False,
+        min_value=1,
+        error_messages={"invalid": STALE_FORM, "min_value": STALE_FORM},
+    )
 
 
 def shop_temperature() -> Any:

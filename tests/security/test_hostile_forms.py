@@ -260,6 +260,20 @@ def test_an_empty_post_of_the_reminder_wording_is_refused_at_its_fields(client, 
     assert response.context["form"].errors["subject"] == ["This field is required."]
 
 
+def test_a_mangled_version_says_to_reload_the_page(client, shop, role_users) -> None:
+    # Found by hypothesis: a version of " " was refused with its message on the hidden field only.
+    from shopdesk.workshop.models import SpringRecord
+
+    work_order, _ = shop
+    saved = list(SpringRecord.objects.filter(work_order=work_order).values_list())
+    client.force_login(role_users["technician"])
+    url = reverse("workshop:spring", args=[work_order.number, "after"])
+    response = client.post(url, {"spring-after-version": " ", "spring-after-spacer_count": "2"})
+    assert response.status_code == 200
+    assert "reload the job page and enter the values again" in response.content.decode()
+    assert list(SpringRecord.objects.filter(work_order=work_order).values_list()) == saved
+
+
 def test_a_huge_volume_is_refused_at_the_field(client, shop, role_users) -> None:
     from shopdesk.stock.models import StockMovement
 
