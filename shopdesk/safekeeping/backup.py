@@ -34,7 +34,8 @@ class BackupError(Exception):
 
 
 def kind_of(path: Path) -> str:
-    head = path.read_bytes()[:64] if path.stat().st_size else b""
+    with path.open("rb") as file:
+        head = file.read(64)  # only the first bytes: a backup may be gigabytes
     if head.startswith(SQLITE_MAGIC):
         return "sqlite"
     if head.startswith(PG_MAGIC):
@@ -76,41 +77,50 @@ def backup(path: Path, *, kind: str | None = None) -> str:
     if kind == "pg_dump" and (vendor != "postgresql" or shutil.which("pg_dump") is None):
         kind = "xml"
     path.parent.mkdir(parents=True, exist_ok=True)
-    if kind == "sqlite":
-        if vendor != "sqlite":
-            raise BackupError("An SQLite copy needs an SQLite database.")
-        connection.ensure_connection()
-        destination = sqlite3.connect(path)
-        try:
-            connection.connection.backup(destination)
-        finally:
-            destination.close()
-    elif kind == "pg_dump":
-        settings_dict = connection.settings_dict
-        _run(
-            [
-                "pg_dump",
-                "-Fc",
-                "--no-owner",
-                "-f",
-                str(path),
-                *_pg_args(settings_dict),
-                settings_dict["NAME"],
-            ],
-            _pg_env(settings_dict),
-        )
-    else:
-        with tempfile.TemporaryDirectory(dir=path.parent) as folder:
-            dump = Path(folder) / "backup.xml"  # XML keeps microseconds; JSON rounds them
-            call_command(
-                "dumpdata",
-                natural_foreign=True,
-                exclude=JSON_EXCLUDE,
-                format="xml",
-                output=str(dump),
-                verbosity=0,
+    # Each kind writes beside ``path`` and is moved onto it when whole: last night's copy stays
+    # until tonight's is complete.
+    partial = path.with_name(f".{path.name}.partial")
+    partial.unlink(missing_ok=True)
+    try:
+        if kind == "sqlite":
+            if vendor != "sqlite":
+                raise BackupError("An SQLite copy needs an SQLite database.")
+            connection.ensure_connection()
+            destination = sqlite3.connect(partial)
+            try:
+                connection.connection.backup(destination)
+            finally:
+                destination.close()
+            os.replace(partial, path)
+        elif kind == "pg_dump":
+            settings_dict = connection.settings_dict
+            _run(
+                [
+                    "pg_dump",
+                    "-Fc",
+                    "--no-owner",
+                    "-f",
+                    str(partial),
+                    *_pg_args(settings_dict),
+                    settings_dict["NAME"],
+                ],
+                _pg_env(settings_dict),
             )
-            os.replace(dump, path)
+            os.replace(partial, path)
+        else:
+            with tempfile.TemporaryDirectory(dir=path.parent) as folder:
+                dump = Path(folder) / "backup.xml"  # XML keeps microseconds; JSON rounds them
+                call_command(
+                    "dumpdata",
+                    natural_foreign=True,
+                    exclude=JSON_EXCLUDE,
+                    format="xml",
+                    output=str(dump),
+                    verbosity=0,
+                )
+                os.replace(dump, path)
+    finally:
+        partial.unlink(missing_ok=True)  # a copy that failed halfway
     return kind
 
 

@@ -52,6 +52,33 @@ def test_a_sqlite_backup_restores_every_row_into_an_empty_database(
     raw.close()
 
 
+@pytest.mark.django_db(transaction=True)  # the online backup does not finish inside a test's transaction
+def test_a_backup_that_fails_halfway_leaves_the_last_copy_whole(tmp_path, work_order, monkeypatch) -> None:
+    if connection.vendor != "sqlite":
+        pytest.skip("fails the SQLite copy halfway; the pg_dump copy writes beside its path the same way")
+    from shopdesk.safekeeping import backup
+
+    copy = tmp_path / "shop.backup"
+    call_command("backup_shop", str(copy))
+    last_night = copy.read_bytes()
+    assert backup.kind_of(copy) == "sqlite"
+
+    connect = sqlite3.connect
+
+    def broken_connect(path, *args, **kwargs):
+        destination = connect(path, *args, **kwargs)
+        destination.execute("CREATE TABLE half (x)")  # something written, then the disk fills
+        destination.commit()
+        destination.close()
+        raise sqlite3.OperationalError("database or disk is full")
+
+    monkeypatch.setattr(backup.sqlite3, "connect", broken_connect)
+    with pytest.raises(sqlite3.OperationalError):
+        backup.backup(copy)
+    assert copy.read_bytes() == last_night
+    assert sorted(path.name for path in tmp_path.iterdir()) == ["shop.backup"]  # no half copy left
+
+
 @pytest.mark.django_db(transaction=True)
 def test_restoring_a_copy_puts_back_what_was_lost(tmp_path, work_order, technician, oil_part) -> None:
     from shopdesk.workshop.models import OilRecord, WorkOrder
