@@ -220,7 +220,7 @@ def oil_save(request: HttpRequest, number: str, chamber_id: int) -> HttpResponse
                 values=form.record_values(),
                 by=request.user,
                 record=record,
-                version=expected_version(record, form.cleaned_data.get("version")),
+                version=services.expected_version(record, form.cleaned_data.get("version")),
             )
         except services.RecordConflict as conflict:
             fresh = OilRecordForm(
@@ -255,7 +255,7 @@ def spring_save(request: HttpRequest, number: str, stage: str) -> HttpResponse:
                 values=form.record_values(),
                 by=request.user,
                 record=record,
-                version=expected_version(record, form.cleaned_data.get("version")),
+                version=services.expected_version(record, form.cleaned_data.get("version")),
             )
         except services.RecordConflict as conflict:
             fresh = SpringRecordForm(
@@ -359,19 +359,6 @@ def record_void(request: HttpRequest, number: str, kind: str, record_id: int) ->
     if request.htmx:
         return _render_job(request, work_order)
     return redirect(work_order)
-
-
-def expected_version(record: Any, version: int | None) -> int | None:
-    """The version a change to a saved record was made from.
-
-    A post that changes a saved record without saying which version it saw (a stale page, a
-    hand-made request) is a conflict, never an overwrite: nothing saved is lost.
-    """
-    if record is None:
-        return None
-    if version is None:
-        raise services.RecordConflict(record)
-    return version
 
 
 def _add_errors(form: Any, error: ValidationError) -> None:

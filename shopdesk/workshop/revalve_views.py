@@ -25,7 +25,7 @@ from shopdesk.calc import damper as damper_calc
 from shopdesk.calc import shims as shim_calc
 from shopdesk.specs.geometry import oil_for, piston_for, shim_stack_for
 from shopdesk.specs.models import Chamber, Oil, StackPreset, UnitModel, Valve
-from shopdesk.workshop.bench_views import _add_errors, _job, expected_version
+from shopdesk.workshop.bench_views import _add_errors, _job
 from shopdesk.workshop.models import OilRecord, ShimStackRecord, WorkOrder
 from shopdesk.workshop.selectors import COMPARE_LIFT_MM, stack_comparison, stack_summaries
 from shopdesk.workshop.services import RecordConflict, bench
@@ -366,7 +366,7 @@ def stack_post(request: HttpRequest, number: str, valve: str, stage: str) -> Htt
             values=editor.values,
             by=request.user,
             record=record,
-            version=expected_version(record, version),
+            version=bench.expected_version(record, version),
         )
     except RecordConflict as conflict:
         fresh = StackEditor.for_record(conflict.current, stage=stage, unit_model=unit_model, valve=valve)

@@ -40,9 +40,7 @@ def open_work_orders() -> QuerySet[WorkOrder]:
     )
 
 
-def status_board(
-    *, today: datetime.date | None = None, may: Callable[[str], bool] = lambda permission: True
-) -> list[BoardColumn]:
+def status_board(*, may: Callable[[str], bool], today: datetime.date | None = None) -> list[BoardColumn]:
     """Open jobs grouped by status, oldest promise first; each column shows at most
     ``BOARD_LIMIT_PER_STATUS`` jobs and counts the rest. Two queries whatever the shop's size.
     Each column carries the moves out of its status that ``may`` (a user's ``has_perm``) allows;

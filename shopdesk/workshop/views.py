@@ -103,6 +103,10 @@ def move(request: HttpRequest, number: str) -> HttpResponse:
             )
     if request.POST.get("from") == "board":
         if request.htmx:
-            return render(request, "workshop/board.html#board", {"columns": selectors.status_board()})
+            return render(
+                request,
+                "workshop/board.html#board",
+                {"columns": selectors.status_board(may=request.user.has_perm)},
+            )
         return redirect("workshop:board")
     return redirect(work_order)

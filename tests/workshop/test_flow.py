@@ -86,6 +86,18 @@ def test_the_board_moves_a_job_with_one_click(client, technician, work_order) ->
     assert work_order.status == Status.ON_THE_BENCH
 
 
+def test_the_board_redrawn_after_a_move_offers_only_the_mover_s_moves(client, front_desk, work_order) -> None:
+    client.force_login(front_desk)
+    response = client.post(
+        reverse("workshop:move", kwargs={"number": work_order.number}),
+        {"to": "waiting_for_parts", "from": "board"},
+        headers={"HX-Request": "true"},
+    )
+    body = response.content.decode()
+    assert "is now waiting for parts" in body
+    assert "Parts in: back on the bench" not in body  # the technician's move, not the front desk's
+
+
 def test_the_board_groups_open_jobs_and_marks_late_ones(
     client, front_desk, unit, service_types, django_assert_max_num_queries
 ) -> None:

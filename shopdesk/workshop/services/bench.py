@@ -53,6 +53,19 @@ class RecordConflict(Exception):
         )
 
 
+def expected_version(record: models.Model | None, version: int | None) -> int | None:
+    """The version a change to a saved record was made from.
+
+    A post that changes a saved record without saying which version it saw (a stale page, a
+    hand-made request) is a conflict, never an overwrite: nothing saved is lost.
+    """
+    if record is None:
+        return None
+    if version is None:
+        raise RecordConflict(record)
+    return version
+
+
 class RecordRefused(ValidationError):
     """A record the job's state does not allow."""
 
