@@ -360,6 +360,8 @@ def main() -> None:
     static = scratch / "static"
     _manage(dict(production, STATIC_ROOT=str(static)), "collectstatic", "--noinput", "-v0")
     port = _free_port()
+    # gunicorn's own log goes to a file: a pipe nobody reads fills up and stalls every worker.
+    server_log = Path(tempfile.gettempdir()) / "shopdesk-load-gunicorn.log"
     server = subprocess.Popen(
         [
             sys.executable,
@@ -375,8 +377,7 @@ def main() -> None:
         cwd=ROOT,
         env=dict(production, STATIC_ROOT=str(static)),
         stdout=subprocess.DEVNULL,
-        stderr=subprocess.PIPE,
-        text=True,
+        stderr=server_log.open("w"),
         start_new_session=True,
     )
     try:
@@ -429,6 +430,7 @@ def main() -> None:
     finally:
         os.killpg(server.pid, signal.SIGTERM)
         server.wait(timeout=30)
+        print(f"gunicorn's log: {server_log}")
         shutil.rmtree(scratch, ignore_errors=True)  # the SQLite file and the collected static files
 
 

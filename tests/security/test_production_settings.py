@@ -14,6 +14,7 @@ from django.contrib.auth.password_validation import validate_password
 from django.core.exceptions import ValidationError
 from django.urls import reverse
 
+from shopdesk.documents.checks import harfbuzz_subset_found
 from tests.conftest import PASSWORD
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -40,6 +41,9 @@ def _deploy_check(tmp_path, **extra: str) -> subprocess.CompletedProcess:
 
 
 def test_the_deployment_check_passes_with_production_settings(tmp_path) -> None:
+    if not harfbuzz_subset_found() and os.environ.get("CI") != "true":
+        # The check rightly warns (documents.W001) on a machine without the library; CI has it.
+        pytest.skip("libharfbuzz-subset0 is not installed (apt-get install libharfbuzz-subset0)")
     result = _deploy_check(tmp_path)
     assert result.returncode == 0, result.stderr
     assert "System check identified no issues" in result.stdout
