@@ -147,6 +147,9 @@ TEMPLATES = [
     }
 ]
 
+# Form fields are drawn from Django's own form templates by Jinja2 (shopdesk/shop/form_renderer.py).
+FORM_RENDERER = "shopdesk.shop.form_renderer.ShopFormRenderer"
+
 DATABASES = {
     "default": dj_database_url.parse(
         env_str("DATABASE_URL", f"sqlite:///{BASE_DIR / 'shopdesk.sqlite3'}"),
