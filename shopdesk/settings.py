@@ -115,6 +115,7 @@ MIDDLEWARE = [
     "csp.middleware.CSPMiddleware",
     "whitenoise.middleware.WhiteNoiseMiddleware",
     "django.contrib.sessions.middleware.SessionMiddleware",
+    "shopdesk.accounts.middleware.session_refresh",  # moves a session's expiry on, once a minute
     "django.middleware.common.CommonMiddleware",
     "django.middleware.csrf.CsrfViewMiddleware",
     "django.contrib.auth.middleware.AuthenticationMiddleware",
@@ -203,7 +204,7 @@ EMAIL_BACKEND = env_str("EMAIL_BACKEND", "django.core.mail.backends.console.Emai
 DEFAULT_FROM_EMAIL = env_str("DEFAULT_FROM_EMAIL", "workshop@shop.example")
 
 SESSION_COOKIE_AGE = 10 * 60 * 60  # a working day of idleness ends a session
-SESSION_SAVE_EVERY_REQUEST = True
+SESSION_SAVE_EVERY_REQUEST = False  # shopdesk.accounts.middleware moves the expiry on, once a minute
 SESSION_COOKIE_HTTPONLY = True
 
 # Sign-in throttling (django-axes): a user name from one address is locked after a few failures,

@@ -38,7 +38,8 @@ def test_it_searches_in_two_queries_however_many_customers(
     )
     client.force_login(front_desk)
     # session, user, user permissions, group permissions, customers, units,
-    # and the session's idle-timeout refresh (savepoint, update, release) = 9
+    # and the session's idle-timeout refresh, the first request after sign-in (savepoint, update,
+    # release) = 9
     with django_assert_max_num_queries(9):
         response = client.get(reverse("customers:search"), {"q": "rider"}, headers={"HX-Request": "true"})
     assert response.content.decode().count('class="hit"') == 15

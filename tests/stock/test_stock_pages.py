@@ -104,8 +104,8 @@ def test_it_lists_stock_in_a_fixed_number_of_queries(
     client.force_login(technician)
     # 1 session, 2 user, 3 the user's own permissions and 4 its groups' (the permission check,
     # then cached), 5 the paginator's count, 6 the last 50 movements with part, lot, job and user
-    # joined, 7 the page of parts with on hand summed in a correlated subquery, then the session
-    # saved (SESSION_SAVE_EVERY_REQUEST): 8 savepoint, 9 update, 10 release. The same whatever
+    # joined, 7 the page of parts with on hand summed in a correlated subquery, then the session's
+    # expiry moved on (the first request after sign-in): 8 savepoint, 9 update, 10 release. The same whatever
     # the number of parts or movements.
     with django_assert_max_num_queries(10):
         response = client.get(reverse("stock:list"))
