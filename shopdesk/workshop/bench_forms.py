@@ -48,7 +48,11 @@ class OilRecordForm(VersionedForm):
     fill_confirmed = forms.BooleanField(required=False, label="The fill differs from the spec on purpose")
     notes = forms.CharField(required=False, max_length=300)
 
-    def __init__(self, *args: Any, chamber: Chamber, **kwargs: Any) -> None:
+    SHARED_CHOICES = ("oil_part", "oil_lot")
+
+    def __init__(
+        self, *args: Any, chamber: Chamber, choices: dict[str, list[Any]] | None = None, **kwargs: Any
+    ) -> None:
         super().__init__(*args, **kwargs)
         self.chamber = chamber
         self.fields["drained"].widget.attrs.update({"inputmode": "decimal", "autocomplete": "off"})
@@ -60,6 +64,19 @@ class OilRecordForm(VersionedForm):
         self.fields["oil_lot"].label_from_instance = lambda lot: (
             f"{lot.part.part_number} · lot {lot.lot_code}"
         )
+        for name, listed in (choices or {}).items():
+            self.fields[
+                name
+            ].choices = listed  # shown from the list; a choice is still checked against the query
+
+    def share_choices(self) -> dict[str, list[Any]]:
+        """Reads the oil and lot lists once and keeps them, for this form and for the other chambers'
+        forms on the same page (``choices=``): each select had read them again."""
+        # iter(): list() would first ask the choices' length, one COUNT query more each
+        listed = {name: list(iter(self.fields[name].choices)) for name in self.SHARED_CHOICES}
+        for name, choices in listed.items():
+            self.fields[name].choices = choices
+        return listed
 
     def density_source(self) -> Any:
         """The oil whose density turns grams into mL: the one chosen, else the spec sheet's."""

@@ -109,13 +109,18 @@ def job_context(work_order: WorkOrder, user: Any, overrides: Overrides | None = 
     )
     live_oil = {record.chamber_id: record for record in oil_records if not record.is_void}
     chambers = []
+    oil_choices = None  # read by the first chamber's form, shown by every one
     for chamber in unit_model.chambers.select_related("oil"):
         record = live_oil.get(chamber.pk)
         form, conflict = overrides.oil.get(chamber.pk, (None, ""))
         if form is None:
             form = OilRecordForm(
-                prefix=f"oil-{chamber.pk}", chamber=chamber, initial=OilRecordForm.initial_for(record)
+                prefix=f"oil-{chamber.pk}",
+                chamber=chamber,
+                initial=OilRecordForm.initial_for(record),
+                choices=oil_choices,
             )
+            oil_choices = oil_choices or form.share_choices()
         chambers.append(
             ChamberRow(
                 chamber=chamber,

@@ -307,3 +307,27 @@ def test_the_bench_queue_puts_my_jobs_first(client, technician, unit, front_desk
     client.force_login(technician)
     body = client.get(reverse("workshop:bench")).content.decode()
     assert body.index(second.number) < body.index(first.number)
+
+
+def test_the_job_page_query_count_does_not_grow_with_chambers(client, technician, on_bench, oil_part) -> None:
+    # Every chamber's form offers the same oils and lots: they are read once for the page.
+    from django.db import connection
+    from django.test.utils import CaptureQueriesContext
+    from django.utils.html import escape
+
+    from shopdesk.specs.models import Chamber
+
+    client.force_login(technician)
+    client.get(on_bench.get_absolute_url())  # the session's expiry moved on: not counted below
+    with CaptureQueriesContext(connection) as two_chambers:
+        page = client.get(on_bench.get_absolute_url()).content.decode()
+    model = on_bench.unit.unit_model
+    for n in range(3):
+        Chamber.objects.create(unit_model=model, name=f"Extra chamber {n}", kind="damper", volume_ml=20)
+    with CaptureQueriesContext(connection) as five_chambers:
+        crowded = client.get(on_bench.get_absolute_url()).content.decode()
+    assert model.chambers.count() == 5
+    assert len(five_chambers) == len(two_chambers)
+    # and each of the five still offers the oil from stock
+    option = f'<option value="{oil_part.pk}">{escape(str(oil_part))}</option>'
+    assert page.count(option) == 2 and crowded.count(option) == 5
