@@ -104,13 +104,14 @@ def job_context(work_order: WorkOrder, user: Any, overrides: Overrides | None = 
     unit_model = work_order.unit.unit_model
     oil_records = list(
         OilRecord.objects.filter(work_order=work_order).select_related(
-            "oil_part", "oil_lot", "recorded_by", "voided_by"
+            "oil_part", "oil_lot", "chamber", "recorded_by", "voided_by"
         )
     )
     live_oil = {record.chamber_id: record for record in oil_records if not record.is_void}
+    spec_chambers = list(unit_model.chambers.select_related("oil"))
     chambers = []
     oil_choices = None  # read by the first chamber's form, shown by every one
-    for chamber in unit_model.chambers.select_related("oil"):
+    for chamber in spec_chambers:
         record = live_oil.get(chamber.pk)
         form, conflict = overrides.oil.get(chamber.pk, (None, ""))
         if form is None:
@@ -155,15 +156,26 @@ def job_context(work_order: WorkOrder, user: Any, overrides: Overrides | None = 
     )
     labour = list(LabourEntry.objects.filter(work_order=work_order).select_related("technician", "voided_by"))
     checks = list(work_order.final_checks.select_related("done_by"))
+    requested = list(work_order.services.select_related("service_type"))
+    # The rules below read the records this page has just read, not the database again.
+    records = services.JobRecords(
+        services=requested,
+        chambers=spec_chambers,
+        oil=oil_records,
+        spring=spring_records,
+        parts=parts,
+        labour=labour,
+        checks=checks,
+    )
     may_override = user.has_perm("stock.override_stock")
     return {
         "work_order": work_order,
         "unit_model": unit_model,
-        "requested": list(work_order.services.select_related("service_type")),
+        "requested": requested,
         "events": list(work_order.events.select_related("by")),
         "moves": flow.moves_from(work_order.status),
         "chambers": chambers,
-        "required_chambers": {chamber.pk for chamber in services.required_chambers(work_order)},
+        "required_chambers": {chamber.pk for chamber in services.required_chambers(work_order, records)},
         "voided_oil": [record for record in oil_records if record.is_void],
         "springs": springs,
         "stack_summaries": selectors.stack_summaries(work_order),
@@ -175,8 +187,8 @@ def job_context(work_order: WorkOrder, user: Any, overrides: Overrides | None = 
         "labour_minutes": sum(entry.minutes for entry in labour if not entry.is_void),
         "labour_form": overrides.labour or LabourForm(prefix="labour"),
         "checks": checks,
-        "missing": services.missing_before_ready(work_order),
-        "price": services.job_price(work_order),
+        "missing": services.missing_before_ready(work_order, records),
+        "price": services.job_price(work_order, records),
         "torque_values": list(unit_model.torque_values.all()),
         "can_record": work_order.status in services.bench.RECORDING_STATUSES,
         "shop_temperature_c": shop_temperature().magnitude,

@@ -331,3 +331,55 @@ def test_the_job_page_query_count_does_not_grow_with_chambers(client, technician
     # and each of the five still offers the oil from stock
     option = f'<option value="{oil_part.pk}">{escape(str(oil_part))}</option>'
     assert page.count(option) == 2 and crowded.count(option) == 5
+
+
+def test_the_job_page_shows_the_rules_answers_from_the_records_it_read(
+    client, on_bench, technician, oil_part, settings
+) -> None:
+    # The page passes the records it reads to the ready and price rules; with voided records of
+    # every kind beside live ones, it must show what the rules say when they read the job afresh.
+    from shopdesk.specs.models import ServiceType
+
+    settings.SHOP_LABOUR_RATE = Decimal("60.00")
+    damper, lowers = _chamber(on_bench, "damper"), _chamber(on_bench, "lowers")
+    wrong = services.oil_record_save(
+        work_order=on_bench, chamber=damper, by=technician, values={"filled_ml": 80.0, "oil_part": oil_part}
+    )
+    services.record_void(record=wrong, reason="Wrong chamber.", by=technician)
+    services.oil_record_save(
+        work_order=on_bench,
+        chamber=lowers,
+        by=technician,
+        values={"drained_ml": 12.0, "filled_ml": 15.0, "oil_part": oil_part},
+    )
+    part = services.part_use(work_order=on_bench, part=oil_part, quantity=Decimal("10"), by=technician)
+    services.record_void(record=part, reason="Counted twice.", by=technician)
+    services.labour_add(
+        work_order=on_bench, technician=technician, minutes=30, charged_as_extra=True, by=technician
+    )
+    spare = services.labour_add(
+        work_order=on_bench, technician=technician, minutes=45, charged_as_extra=True, by=technician
+    )
+    services.record_void(record=spare, reason="Not extra.", by=technician)
+    services.spring_record_save(
+        work_order=on_bench, stage="after", by=technician, values={"positive_pressure_kpa": 580.0}
+    )
+    air = ServiceType.objects.create(name="Air-spring service", scope="air_spring", price=Decimal("30.00"))
+    on_bench.services.create(service_type=air, price=air.price, labour_minutes=30)
+    first = on_bench.final_checks.first()
+    services.final_check_set(check=first, done=True, by=technician)
+
+    client.force_login(technician)
+    shown = client.get(on_bench.get_absolute_url()).context
+    on_bench.refresh_from_db()
+    assert shown["missing"] == services.missing_before_ready(on_bench)
+    assert shown["price"] == services.job_price(on_bench)
+    assert shown["required_chambers"] == {chamber.pk for chamber in services.required_chambers(on_bench)}
+    # and those answers are the right ones: the voided oil, part and labour count for nothing
+    assert "Oil filled in “Damper cartridge”." in shown["missing"]
+    assert "Labour minutes." not in shown["missing"]
+    assert "The spring setup after the work." not in shown["missing"]
+    assert [line.description for line in shown["price"].lines][-2:] == [
+        f"{oil_part.name}, {lowers.name} (mL)",
+        "Extra labour, 30 min",
+    ]

@@ -2,6 +2,7 @@
 
 from shopdesk.workshop.services.bench import (
     JobPrice,
+    JobRecords,
     RecordConflict,
     RecordRefused,
     expected_version,
@@ -28,6 +29,7 @@ from shopdesk.workshop.services.jobs import (
 
 __all__ = [
     "JobPrice",
+    "JobRecords",
     "MoveRefused",
     "RecordConflict",
     "RecordRefused",

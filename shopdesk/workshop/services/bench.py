@@ -28,6 +28,7 @@ from shopdesk.workshop.models import (
     LabourEntry,
     OilRecord,
     PartUsed,
+    RequestedService,
     ServiceRecord,
     SpringRecord,
     Status,
@@ -414,45 +415,69 @@ OIL_SCOPES = {
 }
 
 
-def required_chambers(work_order: WorkOrder) -> list[Chamber]:
+@dataclass(frozen=True)
+class JobRecords:
+    """What the ready-for-pickup and price rules read of a job, read once. The job page passes the
+    records it reads to show anyway; a rule given none reads them itself. Voided records are in
+    the lists: each rule looks at the live ones."""
+
+    services: list[RequestedService]  # with their service types
+    chambers: list[Chamber]  # the spec sheet's
+    oil: list[OilRecord]  # with the oil part and the chamber
+    spring: list[SpringRecord]
+    parts: list[PartUsed]  # with the part
+    labour: list[LabourEntry]
+    checks: list[FinalCheck]
+
+    @classmethod
+    def read(cls, work_order: WorkOrder) -> JobRecords:
+        return cls(
+            services=list(work_order.services.select_related("service_type")),
+            chambers=list(work_order.unit.unit_model.chambers.all()),
+            oil=list(OilRecord.objects.filter(work_order=work_order).select_related("oil_part", "chamber")),
+            spring=list(SpringRecord.objects.filter(work_order=work_order)),
+            parts=list(PartUsed.objects.filter(work_order=work_order).select_related("part")),
+            labour=list(LabourEntry.objects.filter(work_order=work_order)),
+            checks=list(work_order.final_checks.all()),
+        )
+
+
+def required_chambers(work_order: WorkOrder, records: JobRecords | None = None) -> list[Chamber]:
     """The chambers whose oil the job's services must record."""
-    scopes = {line.service_type.scope for line in work_order.services.select_related("service_type")}
-    return [
-        chamber
-        for chamber in work_order.unit.unit_model.chambers.all()
-        if scopes & OIL_SCOPES.get(chamber.kind, set())
-    ]
+    if records is None:
+        lines = list(work_order.services.select_related("service_type"))
+        chambers = list(work_order.unit.unit_model.chambers.all())
+    else:
+        lines, chambers = records.services, records.chambers
+    scopes = {line.service_type.scope for line in lines}
+    return [chamber for chamber in chambers if scopes & OIL_SCOPES.get(chamber.kind, set())]
 
 
-def missing_before_ready(work_order: WorkOrder) -> list[str]:
+def missing_before_ready(work_order: WorkOrder, records: JobRecords | None = None) -> list[str]:
     """What must still be recorded before the job may be ready for pickup, in plain words."""
+    records = records or JobRecords.read(work_order)
     missing: list[str] = []
-    if not work_order.services.exists():
+    if not records.services:
         missing.append("No service is on the job.")
-    live_oil = {
-        record.chamber_id: record
-        for record in OilRecord.objects.filter(work_order=work_order, voided_at__isnull=True)
-    }
-    for chamber in required_chambers(work_order):
+    live_oil = {record.chamber_id: record for record in records.oil if record.voided_at is None}
+    for chamber in required_chambers(work_order, records):
         record = live_oil.get(chamber.pk)
         if record is None or record.filled_ml is None:
             missing.append(f"Oil filled in “{chamber.name}”.")
         elif record.drained_ml is None:
             missing.append(f"Oil drained from “{chamber.name}”.")
-    scopes = set(work_order.services.values_list("service_type__scope", flat=True))
+    scopes = {line.service_type.scope for line in records.services}
     spring_scopes = {ServiceType.Scope.AIR_SPRING, ServiceType.Scope.FULL, ServiceType.Scope.REVALVE}
-    if (
-        scopes & spring_scopes
-        and not SpringRecord.objects.filter(
-            work_order=work_order, stage=SpringRecord.Stage.AFTER, voided_at__isnull=True
-        ).exists()
+    if scopes & spring_scopes and not any(
+        record.stage == SpringRecord.Stage.AFTER and record.voided_at is None for record in records.spring
     ):
         missing.append("The spring setup after the work.")
-    if not LabourEntry.objects.filter(work_order=work_order, voided_at__isnull=True).exists():
+    if not any(entry.voided_at is None for entry in records.labour):
         missing.append("Labour minutes.")
-    for check in work_order.final_checks.filter(done_at__isnull=True):
-        missing.append(f"Check: {check.label}.")
-    if not work_order.final_checks.exists():
+    for check in records.checks:
+        if check.done_at is None:
+            missing.append(f"Check: {check.label}.")
+    if not records.checks:
         missing.append("The final checklist.")
     return missing
 
@@ -517,13 +542,15 @@ class JobPrice:
     total: Total
 
 
-def job_price(work_order: WorkOrder) -> JobPrice:
+def job_price(work_order: WorkOrder, records: JobRecords | None = None) -> JobPrice:
     """Services at their quoted price, parts at price, extra labour at the shop's rate, tax once."""
+    records = records or JobRecords.read(work_order)
     lines = [
-        PriceLine(line.service_type.name, Decimal(1), line.price, line.price)
-        for line in work_order.services.select_related("service_type")
+        PriceLine(line.service_type.name, Decimal(1), line.price, line.price) for line in records.services
     ]
-    for used in PartUsed.objects.filter(work_order=work_order, voided_at__isnull=True).select_related("part"):
+    for used in records.parts:
+        if used.voided_at is not None:
+            continue
         lines.append(
             PriceLine(
                 f"{used.part.name} ({used.part.part_number})",
@@ -532,9 +559,9 @@ def job_price(work_order: WorkOrder) -> JobPrice:
                 round_money(used.quantity * used.unit_price),
             )
         )
-    for record in OilRecord.objects.filter(
-        work_order=work_order, voided_at__isnull=True, oil_part__isnull=False, filled_ml__isnull=False
-    ).select_related("oil_part", "chamber"):
+    for record in records.oil:
+        if record.voided_at is not None or record.oil_part_id is None or record.filled_ml is None:
+            continue
         quantity = Decimal(str(round(record.filled_ml, 1)))
         price = record.oil_part.price
         lines.append(
@@ -546,9 +573,7 @@ def job_price(work_order: WorkOrder) -> JobPrice:
             )
         )
     extra = sum(
-        LabourEntry.objects.filter(
-            work_order=work_order, voided_at__isnull=True, charged_as_extra=True
-        ).values_list("minutes", flat=True)
+        entry.minutes for entry in records.labour if entry.voided_at is None and entry.charged_as_extra
     )
     if extra:
         rate = settings.SHOP_LABOUR_RATE
