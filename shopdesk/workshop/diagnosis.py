@@ -13,6 +13,7 @@ from dataclasses import dataclass
 
 from django.conf import settings
 
+from shopdesk.shop.quantities import VOLUME, format_quantity
 from shopdesk.specs.models import Chamber
 
 CONDITION_FINDINGS = {
@@ -36,7 +37,11 @@ def drained_findings(*, chamber: Chamber, drained_ml: float | None, condition: s
         over = settings.SHOP_DRAIN_OVER_SPEC_PERCENT
         under = settings.SHOP_DRAIN_UNDER_SPEC_PERCENT
         difference = (drained_ml - spec) / spec * 100
-        described = f"{drained_ml:.0f} mL out against {spec:.0f} mL in the spec ({difference:+.0f} %)"
+        # In the shop's volume unit and its decimals: "8.5 mL out against 10 mL (-15 %)", not "8 mL".
+        described = (
+            f"{format_quantity(drained_ml, VOLUME)} out against {format_quantity(spec, VOLUME)} "
+            f"in the spec ({difference:+.0f} %)"
+        )
         if chamber.sealed and difference > over:
             findings.append(
                 Finding(

@@ -80,6 +80,19 @@ def test_it_says_what_less_than_spec_from_a_lower_leg_suggests(on_bench, technic
     assert drained_findings(chamber=chamber, drained_ml=14.0)[0].level == "ok"
 
 
+def test_a_finding_gives_the_volumes_in_the_shops_unit_as_measured(on_bench, settings) -> None:
+    from shopdesk.workshop.diagnosis import drained_findings
+
+    chamber = _chamber(on_bench, "lowers")  # spec 15 mL
+    [finding] = drained_findings(chamber=chamber, drained_ml=12.5)
+    # 12.5 against 15 is -16.7 %: the half millilitre is shown, not rounded away
+    assert finding.message.startswith("12.5 mL out against 15 mL in the spec (-17 %)")
+    settings.SHOP_VOLUME_UNIT = "fl oz"
+    [finding] = drained_findings(chamber=chamber, drained_ml=12.5)
+    # 1 US fl oz = 29.5735 mL (NIST Handbook 44): 12.5 mL = 0.42 fl oz, 15 mL = 0.51 fl oz
+    assert finding.message.startswith("0.42 fl oz out against 0.51 fl oz in the spec (-17 %)")
+
+
 def test_it_asks_to_confirm_a_fill_outside_the_tolerance(client, technician, on_bench, oil_part) -> None:
     chamber = _chamber(on_bench, "damper")
     url = reverse("workshop:oil", kwargs={"number": on_bench.number, "chamber_id": chamber.pk})
