@@ -322,6 +322,33 @@ def test_the_bench_queue_puts_my_jobs_first(client, technician, unit, front_desk
     assert body.index(second.number) < body.index(first.number)
 
 
+def test_a_queue_row_shows_the_job_its_promise_and_who_has_it(
+    client, technician, owner, unit, front_desk, service_types
+) -> None:
+    from shopdesk.workshop.models import WorkOrder
+    from shopdesk.workshop.selectors import bench_queue
+    from shopdesk.workshop.services import work_order_check_in
+
+    mine = work_order_check_in(unit=unit, by=front_desk, service_types=service_types)
+    services.work_order_take(work_order=mine, by=technician)
+    theirs = work_order_check_in(unit=unit, by=front_desk, service_types=service_types)
+    services.work_order_take(work_order=theirs, by=owner)
+    late = timezone.localdate() - datetime.timedelta(days=1)
+    waiting = work_order_check_in(unit=unit, by=front_desk, service_types=service_types)
+    WorkOrder.objects.filter(pk=waiting.pk).update(promised_on=late)
+
+    rows = {row.number: row for row in bench_queue(user=technician)}
+    assert list(rows)[0] == mine.number  # my own first
+    assert (rows[mine.number].is_mine, rows[mine.number].status) == (True, "On the bench")
+    assert rows[theirs.number].technician == owner.get_full_name() and not rows[theirs.number].is_mine
+    assert (rows[waiting.number].technician, rows[waiting.number].is_late) == ("", True)
+    assert rows[waiting.number].promised == late.strftime("%a %d %b").replace(" 0", " ")
+    assert rows[waiting.number].take_address == reverse("workshop:take", args=[waiting.number])
+    client.force_login(technician)
+    body = client.get(reverse("workshop:bench")).content.decode()
+    assert body.count(">Take</button>") == 2 and "<strong>You</strong>" in body
+
+
 def test_the_job_page_query_count_does_not_grow_with_chambers(client, technician, on_bench, oil_part) -> None:
     # Every chamber's form offers the same oils and lots: they are read once for the page.
     from django.db import connection
