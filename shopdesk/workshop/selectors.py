@@ -66,6 +66,11 @@ def time_in(since: datetime.datetime, now: datetime.datetime) -> str:
     return f"{hours // 24} days"
 
 
+def _person(first: str | None, last: str | None, username: str | None) -> str:
+    """A user's full name as ``get_full_name`` gives it, else the user name; "" for nobody."""
+    return "" if username is None else f"{first} {last}".strip() or username
+
+
 def _job_addresses(url_name: str) -> Callable[[str], str]:
     """reverse() once and fill in each job's number: reverse() for every card was a fifth of the
     board's time. The marker matches the ``<str:number>`` converter, as a job number does."""
@@ -131,7 +136,7 @@ def status_board(*, may: Callable[[str], bool], today: datetime.date | None = No
                 time_in=time_in(checked_in_at, now),
                 promised=f"{promised_on.day} {promised_on:%b}" if promised_on else "—",
                 is_late=promised_on is not None and promised_on < today,
-                technician="" if username is None else f"{first} {last}".strip() or username,
+                technician=_person(first, last, username),
             )
         )
     return list(columns.values())
@@ -304,7 +309,7 @@ def bench_queue(*, user: Any, today: datetime.date | None = None, limit: int = 2
             promised=f"{promised_on:%a} {promised_on.day} {promised_on:%b}" if promised_on else "—",
             is_late=promised_on is not None and promised_on < today,
             is_mine=assigned_to_id is not None and assigned_to_id == getattr(user, "pk", None),
-            technician="" if username is None else f"{first} {last}".strip() or username,
+            technician=_person(first, last, username),
         )
         for number, status, promised_on, customer, maker, model, assigned_to_id, first, last, username in jobs
     ]
