@@ -338,7 +338,7 @@ def test_a_queue_row_shows_the_job_its_promise_and_who_has_it(
     WorkOrder.objects.filter(pk=waiting.pk).update(promised_on=late)
 
     rows = {row.number: row for row in bench_queue(user=technician)}
-    assert list(rows)[0] == mine.number  # my own first
+    assert next(iter(rows)) == mine.number  # my own first
     assert (rows[mine.number].is_mine, rows[mine.number].status) == (True, "On the bench")
     assert rows[theirs.number].technician == owner.get_full_name() and not rows[theirs.number].is_mine
     assert (rows[waiting.number].technician, rows[waiting.number].is_late) == ("", True)
