@@ -64,10 +64,9 @@ class OilRecordForm(VersionedForm):
         self.fields["oil_lot"].label_from_instance = lambda lot: (
             f"{lot.part.part_number} · lot {lot.lot_code}"
         )
+        # Shown from the lists given; a choice posted is still checked against the query.
         for name, listed in (choices or {}).items():
-            self.fields[
-                name
-            ].choices = listed  # shown from the list; a choice is still checked against the query
+            self.fields[name].choices = listed
 
     def share_choices(self) -> dict[str, list[Any]]:
         """Reads the oil and lot lists once and keeps them, for this form and for the other chambers'
