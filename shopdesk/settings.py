@@ -211,7 +211,7 @@ SESSION_COOKIE_HTTPONLY = True
 # so one person's mistakes behind the shop's router cannot lock out everyone; reset on success.
 AUTHENTICATION_BACKENDS = [
     "axes.backends.AxesStandaloneBackend",
-    "django.contrib.auth.backends.ModelBackend",
+    "shopdesk.accounts.backends.ShopModelBackend",  # permissions in one query
 ]
 AXES_FAILURE_LIMIT = env_int("AXES_FAILURE_LIMIT", "5", minimum=1, maximum=10_000)
 AXES_COOLOFF_TIME = 0.25  # hours: fifteen minutes
