@@ -1,12 +1,15 @@
 """The one document renderer: given a work order and a kind of document, return (filename, MIME type, bytes).
 
 The pages, the batch and the commands all call it. Static files are read from disk through a
-url_fetcher; nothing is ever fetched over the network. Fonts are the system's (DejaVu Sans,
+url_fetcher, and a picture the renderer made itself (the job card's QR code) comes in a ``data:``
+address; nothing is ever fetched over the network. Fonts are the system's (DejaVu Sans,
 installed by `.ci/run`).
 """
 
 from __future__ import annotations
 
+import base64
+import binascii
 import functools
 import mimetypes
 import threading
@@ -65,14 +68,30 @@ def static_file_for(url: str) -> Path:
     raise ValueError(f"Documents read only the project's static files, not {url!r}.")
 
 
+PNG_DATA = "data:image/png;base64,"
+
+
+def png_data(url: str) -> bytes:
+    """The picture in a ``data:image/png;base64,`` address; ValueError for any other ``data:``."""
+    if not url.startswith(PNG_DATA):
+        raise ValueError(f"Documents take only PNG pictures in a data: address, not {url[:40]!r}.")
+    try:
+        return base64.b64decode(url.removeprefix(PNG_DATA), validate=True)
+    except binascii.Error as error:
+        raise ValueError("A data: address with broken base64.") from error
+
+
 @functools.cache
 def _url_fetcher() -> Any:
     from weasyprint.urls import URLFetcher, URLFetcherResponse
 
     class StaticFilesOnly(URLFetcher):  # type: ignore[misc]
-        """WeasyPrint's fetcher, limited to the project's static files read from disk."""
+        """WeasyPrint's fetcher, limited to the project's static files read from disk and the
+        renderer's own PNG pictures."""
 
         def fetch(self, url: str, headers: object = None) -> Any:
+            if url.startswith("data:"):
+                return URLFetcherResponse(url, png_data(url), {"Content-Type": "image/png"})
             path = static_file_for(url)
             return URLFetcherResponse(url, path.read_bytes(), {"Content-Type": _content_type(path)})
 

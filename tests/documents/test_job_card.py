@@ -145,6 +145,21 @@ def test_the_renderer_reads_static_files_from_disk_and_refuses_the_network():
             static_file_for(address)
 
 
+def test_the_renderer_takes_its_own_png_pictures_and_no_other_data_address():
+    import base64
+
+    from shopdesk.documents.renderer import png_data
+
+    picture = base64.b64decode(selectors.qr_png("https://desk.shop.example/jobs/2026-0001/").split(",", 1)[1])
+    assert picture.startswith(b"\x89PNG\r\n\x1a\n")  # the PNG signature (PNG specification, 5.2)
+    assert png_data("data:image/png;base64," + base64.b64encode(picture).decode()) == picture
+    for address in ("data:text/html;base64,PGgxPmhpPC9oMT4=", "data:image/svg+xml,<svg/>"):
+        with pytest.raises(ValueError, match="only PNG pictures"):
+            png_data(address)
+    with pytest.raises(ValueError, match="broken base64"):
+        png_data("data:image/png;base64,not*base64")
+
+
 @pytest.mark.parametrize(
     ("variable", "value", "message"),
     [
