@@ -21,7 +21,6 @@ from __future__ import annotations
 import argparse
 import os
 import resource
-import shutil
 import statistics
 import sys
 import tempfile
@@ -77,7 +76,6 @@ def main() -> None:
     from shopdesk.workshop.models import Status, WorkOrder
 
     settings.SHOP_PRINT_IN_BACKGROUND = True  # the batch as the page runs it
-    settings.PRINT_BATCH_DIR = Path(tempfile.mkdtemp(prefix="shopdesk-print-"))
     call_command("migrate", verbosity=0)
     call_command("seed_demo", verbosity=0)
     call_command("seed_bulk", customers=20, verbosity=0)
@@ -102,7 +100,7 @@ def main() -> None:
     user = User.objects.order_by("id").first()
     elapsed, batch, polls = _batch(services, PrintBatch, numbers, user)
     rss_peak_mib = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024  # kilobytes on Linux
-    size = services.batch_path(batch).stat().st_size
+    size = len(PrintBatch.objects.get(pk=batch.pk).pdf)
     print(
         f"  batch of {batch.done_count} cards       {elapsed:6.2f} s  "
         f"({elapsed / batch.done_count * 1000:.0f} ms a card, {polls} polls, {size / 1024:.0f} KiB)"
@@ -119,7 +117,6 @@ def main() -> None:
         print(
             f"  peak Python heap during a batch of {len(numbers)} (tracemalloc): {heap_peak / 2**20:.0f} MiB"
         )
-    shutil.rmtree(settings.PRINT_BATCH_DIR, ignore_errors=True)
 
 
 def _batch(services, PrintBatch, numbers, user):  # type: ignore[no-untyped-def]

@@ -333,7 +333,6 @@ if not SHOP_BASE_URL.startswith(("http://", "https://")) or " " in SHOP_BASE_URL
     )
 # Batches of job cards render in a background thread; tests run them in the request instead.
 SHOP_PRINT_IN_BACKGROUND = env_bool("SHOP_PRINT_IN_BACKGROUND", not TESTING)
-PRINT_BATCH_DIR = BASE_DIR / "var" / "print"
 
 
 # --- The owner's reminders --------------------------------------------------------------------

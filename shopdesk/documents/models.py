@@ -2,11 +2,13 @@
 
 from __future__ import annotations
 
+import datetime
 import string
 
 from django.conf import settings
 from django.core.exceptions import ValidationError
 from django.db import models
+from django.utils import timezone
 
 # The placeholders the owner may use in the wording, filled in per job.
 PLACEHOLDERS = ("customer", "number", "shop", "unit")
@@ -66,7 +68,15 @@ class DocumentWording(models.Model):
 
 
 class PrintBatch(models.Model):
-    """Job cards for several jobs as one PDF, rendered in the background; the page polls its status."""
+    """Job cards for several jobs as one PDF, rendered in the background; the page polls its status.
+
+    The finished PDF is kept on the row, not on one server's disk, so that any app server can hand
+    it over; batches are kept ``KEPT_FOR`` and then removed when a new batch starts."""
+
+    # A batch of 200 cards renders in well under a minute; one still unfinished after this was
+    # left by a server that stopped (a restart, a recycled worker) and will not finish.
+    STALLED_AFTER = datetime.timedelta(minutes=10)
+    KEPT_FOR = datetime.timedelta(days=30)
 
     class State(models.TextChoices):
         WAITING = "waiting", "Waiting"
@@ -81,6 +91,7 @@ class PrintBatch(models.Model):
     state = models.CharField(max_length=20, choices=State.choices, default=State.WAITING)
     done_count = models.PositiveIntegerField(default=0)
     file_name = models.CharField(max_length=200, blank=True)
+    pdf = models.BinaryField(blank=True, editable=False, help_text="The finished PDF.")
     error = models.CharField(max_length=500, blank=True)
     finished_at = models.DateTimeField(null=True, blank=True)
 
@@ -101,3 +112,8 @@ class PrintBatch(models.Model):
     @property
     def finished(self) -> bool:
         return self.state in (self.State.DONE, self.State.FAILED)
+
+    @property
+    def stalled(self) -> bool:
+        """Unfinished long after it started: the server rendering it stopped; print it again."""
+        return not self.finished and timezone.now() - self.created_at > self.STALLED_AFTER

@@ -3,8 +3,8 @@
 ``print_batch_start`` records the batch and hands it to a background thread once the row is
 committed (``SHOP_PRINT_IN_BACKGROUND``; tests render in the request). ``print_batch_render`` is
 the worker: it renders through the one renderer, counting each card so the page can show
-progress, and writes the PDF under ``PRINT_BATCH_DIR``. Any failure is kept on the row with its
-reason; nothing is lost and the page says what went wrong.
+progress, and keeps the PDF on the batch's row, where any app server can read it. Any failure is
+kept on the row with its reason; nothing is lost and the page says what went wrong.
 """
 
 from __future__ import annotations
@@ -12,7 +12,6 @@ from __future__ import annotations
 import logging
 import threading
 from collections.abc import Sequence
-from pathlib import Path
 
 from django.conf import settings
 from django.contrib.auth.models import AbstractBaseUser
@@ -29,10 +28,6 @@ logger = logging.getLogger(__name__)
 MAX_BATCH = 200  # a morning's check-ins at a busy shop, with room to spare
 
 
-def batch_path(batch: PrintBatch) -> Path:
-    return Path(settings.PRINT_BATCH_DIR) / f"job-cards-{batch.pk}.pdf"
-
-
 def print_batch_start(*, numbers: Sequence[str], by: AbstractBaseUser, base_url: str) -> PrintBatch:
     """Record a batch of job cards for ``numbers`` (in that order) and start rendering it."""
     numbers = list(dict.fromkeys(numbers))  # once each, first order kept
@@ -45,7 +40,10 @@ def print_batch_start(*, numbers: Sequence[str], by: AbstractBaseUser, base_url:
     if unknown:
         raise ValidationError(f"No job numbered {unknown[0]}.")
     with transaction.atomic():
-        batch = PrintBatch(created_at=timezone.now(), created_by=by, numbers=numbers, base_url=base_url)
+        now = timezone.now()
+        # Batches are paper already printed: the old ones go, with the PDFs they keep.
+        PrintBatch.objects.filter(created_at__lt=now - PrintBatch.KEPT_FOR).delete()
+        batch = PrintBatch(created_at=now, created_by=by, numbers=numbers, base_url=base_url)
         batch.full_clean()
         batch.save()
         if settings.SHOP_PRINT_IN_BACKGROUND:
@@ -75,7 +73,7 @@ def print_batch_render(*, batch_id: int) -> PrintBatch:
     taken = PrintBatch.objects.filter(pk=batch_id, state=PrintBatch.State.WAITING).update(
         state=PrintBatch.State.RENDERING
     )
-    batch = PrintBatch.objects.get(pk=batch_id)
+    batch = PrintBatch.objects.defer("pdf").get(pk=batch_id)
     if not taken:
         return batch
     try:
@@ -93,9 +91,6 @@ def print_batch_render(*, batch_id: int) -> PrintBatch:
         document = render_job_cards(
             work_orders, base_url=batch.base_url, progress=progress, filename=f"job-cards-{batch_id}.pdf"
         )
-        path = batch_path(batch)
-        path.parent.mkdir(parents=True, exist_ok=True)
-        path.write_bytes(document.content)
     except Exception as error:  # the page must say it failed, whatever the cause
         logger.exception("Print batch %s failed", batch_id)
         PrintBatch.objects.filter(pk=batch_id).update(
@@ -107,7 +102,8 @@ def print_batch_render(*, batch_id: int) -> PrintBatch:
         PrintBatch.objects.filter(pk=batch_id).update(
             state=PrintBatch.State.DONE,
             done_count=len(work_orders),
-            file_name=path.name,
+            file_name=document.filename,
+            pdf=document.content,
             finished_at=timezone.now(),
         )
-    return PrintBatch.objects.get(pk=batch_id)
+    return PrintBatch.objects.defer("pdf").get(pk=batch_id)

@@ -5,13 +5,13 @@ from __future__ import annotations
 from django.contrib import messages
 from django.contrib.auth.decorators import permission_required
 from django.core.exceptions import ValidationError
-from django.http import FileResponse, Http404, HttpRequest, HttpResponse
+from django.http import Http404, HttpRequest, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_GET, require_http_methods
 
 from shopdesk.documents import selectors, services
 from shopdesk.documents.models import PrintBatch
-from shopdesk.documents.renderer import Document, render_document
+from shopdesk.documents.renderer import PDF, Document, render_document
 from shopdesk.workshop.models import WorkOrder
 from shopdesk.workshop.selectors import work_order_for_page
 
@@ -76,7 +76,7 @@ def batch_new(request: HttpRequest) -> HttpResponse:
             "candidates": selectors.batch_candidates(),
             "picked": set(picked),
             "error": error,
-            "recent": PrintBatch.objects.select_related("created_by")[:5],
+            "recent": PrintBatch.objects.defer("pdf").select_related("created_by")[:5],
         },
         status=400 if error else 200,
     )
@@ -86,18 +86,16 @@ def batch_new(request: HttpRequest) -> HttpResponse:
 @permission_required("documents.print_job_card", raise_exception=True)
 def batch_detail(request: HttpRequest, batch_id: int) -> HttpResponse:
     """The batch's progress; htmx polls the status part every second until it is done."""
-    batch = get_object_or_404(PrintBatch, pk=batch_id)
+    batch = get_object_or_404(PrintBatch.objects.defer("pdf"), pk=batch_id)
     template = "documents/batch.html#status" if request.htmx else "documents/batch.html"
     return render(request, template, {"batch": batch})
 
 
 @require_GET
 @permission_required("documents.print_job_card", raise_exception=True)
-def batch_file(request: HttpRequest, batch_id: int) -> FileResponse:
+def batch_file(request: HttpRequest, batch_id: int) -> HttpResponse:
     batch = get_object_or_404(PrintBatch, pk=batch_id, state=PrintBatch.State.DONE)
-    path = services.batch_path(batch)
-    if not path.exists():
+    if not batch.pdf:  # a batch from before the PDFs were kept on the row
         raise Http404("The batch's file is gone; print the batch again.")
-    return FileResponse(
-        path.open("rb"), as_attachment=True, filename=path.name, content_type="application/pdf"
-    )
+    document = Document(filename=batch.file_name, mime_type=PDF, content=bytes(batch.pdf))
+    return _pdf(document, download=True)

@@ -26,8 +26,7 @@ def test_today_means_the_jobs_checked_in_today(three_jobs):
     assert selectors.checked_in_today() == [job.number for job in three_jobs["today"]]
 
 
-def test_the_worker_renders_one_card_a_page_in_order(three_jobs, front_desk, tmp_path, settings):
-    settings.PRINT_BATCH_DIR = tmp_path / "print"
+def test_the_worker_renders_one_card_a_page_in_order(three_jobs, front_desk, tmp_path):
     numbers = [three_jobs["yesterday"].number, three_jobs["today"][0].number]
     batch = PrintBatch.objects.create(
         created_at=timezone.now(), created_by=front_desk, numbers=numbers, base_url="http://desk.example/"
@@ -35,7 +34,8 @@ def test_the_worker_renders_one_card_a_page_in_order(three_jobs, front_desk, tmp
     done = services.print_batch_render(batch_id=batch.pk)
     assert done.state == PrintBatch.State.DONE
     assert done.done_count == 2
-    pdf = services.batch_path(done).read_bytes()
+    assert done.file_name == f"job-cards-{batch.pk}.pdf"
+    pdf = bytes(PrintBatch.objects.get(pk=batch.pk).pdf)  # on the row: any app server can hand it over
     assert pdf_pages(pdf, tmp_path) == 2
     text = pdf_text(pdf, tmp_path)
     assert text.index(numbers[0]) < text.index(numbers[1])
@@ -43,10 +43,11 @@ def test_the_worker_renders_one_card_a_page_in_order(three_jobs, front_desk, tmp
     assert services.print_batch_render(batch_id=batch.pk).finished_at == done.finished_at
 
 
-def test_a_failed_batch_keeps_its_reason(three_jobs, front_desk, tmp_path, settings):
-    blocker = tmp_path / "not-a-folder"
-    blocker.write_text("a file where the folder should be")
-    settings.PRINT_BATCH_DIR = blocker
+def test_a_failed_batch_keeps_its_reason(three_jobs, front_desk, monkeypatch):
+    def no_fonts(*args, **kwargs):
+        raise OSError("no usable font found")
+
+    monkeypatch.setattr(services, "render_job_cards", no_fonts)
     batch = PrintBatch.objects.create(
         created_at=timezone.now(),
         created_by=front_desk,
@@ -55,13 +56,11 @@ def test_a_failed_batch_keeps_its_reason(three_jobs, front_desk, tmp_path, setti
     )
     failed = services.print_batch_render(batch_id=batch.pk)
     assert failed.state == PrintBatch.State.FAILED
-    assert "FileExistsError" in failed.error or "NotADirectoryError" in failed.error
+    assert failed.error == "OSError: no usable font found"
+    assert not PrintBatch.objects.get(pk=batch.pk).pdf
 
 
-def test_the_page_prints_todays_check_ins_and_offers_the_file(
-    client, front_desk, three_jobs, tmp_path, settings
-):
-    settings.PRINT_BATCH_DIR = tmp_path / "print"
+def test_the_page_prints_todays_check_ins_and_offers_the_file(client, front_desk, three_jobs, tmp_path):
     client.force_login(front_desk)
     page = client.get(reverse("documents:batch-new")).content.decode()
     assert "Print today's 2 job cards" in page
@@ -73,12 +72,11 @@ def test_the_page_prints_todays_check_ins_and_offers_the_file(
     assert reverse("documents:batch-file", args=[batch.pk]) in status
     assert 'hx-trigger="every 1s"' not in status  # done: the page stops polling
     download = client.get(reverse("documents:batch-file", args=[batch.pk]))
-    assert download["Content-Disposition"].startswith("attachment;")
-    assert pdf_pages(b"".join(download.streaming_content), tmp_path) == 2
+    assert download["Content-Disposition"] == f'attachment; filename="job-cards-{batch.pk}.pdf"'
+    assert pdf_pages(download.content, tmp_path) == 2
 
 
-def test_the_page_prints_a_picked_set(client, front_desk, three_jobs, tmp_path, settings):
-    settings.PRINT_BATCH_DIR = tmp_path / "print"
+def test_the_page_prints_a_picked_set(client, front_desk, three_jobs):
     client.force_login(front_desk)
     picked = three_jobs["yesterday"].number
     client.post(reverse("documents:batch-new"), {"which": "picked", "numbers": [picked]})
@@ -117,3 +115,58 @@ def test_a_batch_needs_the_permission_to_print(client, front_desk, three_jobs, d
     client.force_login(stranger)
     assert client.get(reverse("documents:batch-new")).status_code == 403
     assert client.post(reverse("documents:batch-new"), {"which": "today"}).status_code == 403
+
+
+def test_a_batch_left_unfinished_by_a_stopped_server_says_to_print_it_again(client, front_desk, three_jobs):
+    started = timezone.now() - PrintBatch.STALLED_AFTER - datetime.timedelta(minutes=1)
+    batch = PrintBatch.objects.create(
+        created_at=started,
+        created_by=front_desk,
+        numbers=[three_jobs["yesterday"].number],
+        base_url="/",
+        state=PrintBatch.State.RENDERING,
+    )
+    client.force_login(front_desk)
+    page = client.get(reverse("documents:batch", args=[batch.pk])).content.decode()
+    assert "The batch stopped at 0 of 1 cards" in page
+    assert 'hx-trigger="every 1s"' not in page and "http-equiv" not in page  # no endless polling
+    fresh = PrintBatch.objects.create(
+        created_at=timezone.now(), created_by=front_desk, numbers=batch.numbers, base_url="/"
+    )
+    assert not fresh.stalled
+
+
+def test_a_new_batch_removes_batches_older_than_they_are_kept(client, front_desk, three_jobs):
+    old = PrintBatch.objects.create(
+        created_at=timezone.now() - PrintBatch.KEPT_FOR - datetime.timedelta(days=1),
+        created_by=front_desk,
+        numbers=[three_jobs["yesterday"].number],
+        base_url="/",
+        state=PrintBatch.State.DONE,
+        pdf=b"%PDF-1.7 last month's cards",
+    )
+    recent = PrintBatch.objects.create(
+        created_at=timezone.now() - PrintBatch.KEPT_FOR + datetime.timedelta(days=1),
+        created_by=front_desk,
+        numbers=[three_jobs["yesterday"].number],
+        base_url="/",
+    )
+    client.force_login(front_desk)
+    client.post(reverse("documents:batch-new"), {"which": "today"})
+    assert not PrintBatch.objects.filter(pk=old.pk).exists()
+    assert PrintBatch.objects.filter(pk=recent.pk).exists()
+    assert PrintBatch.objects.count() == 2
+
+
+def test_a_finished_batch_without_its_pdf_says_it_is_gone(client, front_desk, three_jobs):
+    batch = PrintBatch.objects.create(
+        created_at=timezone.now(),
+        created_by=front_desk,
+        numbers=[three_jobs["yesterday"].number],
+        base_url="/",
+        state=PrintBatch.State.DONE,
+        file_name="job-cards-1.pdf",
+    )
+    client.force_login(front_desk)
+    response = client.get(reverse("documents:batch-file", args=[batch.pk]))
+    assert response.status_code == 404

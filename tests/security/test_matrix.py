@@ -96,19 +96,17 @@ PATTERNS = sorted({(pattern, name) for pattern, name in _walk(get_resolver().url
 
 
 @pytest.fixture
-def shop(work_order, technician, front_desk, oil_part, settings, tmp_path):
+def shop(work_order, technician, front_desk, oil_part):
     """One of each kind of record, so that every URL can be filled in with a real one."""
     from django.utils import timezone
 
     from shopdesk.documents.models import PrintBatch
-    from shopdesk.documents.services import batch_path
     from shopdesk.owner.models import DueService
     from shopdesk.owner.services import due_refresh, unsubscribe_token
 
     finish_bench_work(work_order, technician, oil_part)
     unit = work_order.unit
     oil_record = work_order.oilrecord_set.first()
-    settings.PRINT_BATCH_DIR = tmp_path / "print"
     batch = PrintBatch.objects.create(
         created_at=timezone.now(),
         created_by=front_desk,
@@ -116,9 +114,9 @@ def shop(work_order, technician, front_desk, oil_part, settings, tmp_path):
         base_url="http://testserver/",
         state=PrintBatch.State.DONE,
         done_count=1,
+        file_name="job-cards-1.pdf",
+        pdf=b"%PDF-1.7 a batch",
     )
-    batch_path(batch).parent.mkdir(parents=True)
-    batch_path(batch).write_bytes(b"%PDF-1.7 a batch")
     due_refresh(unit=unit)
     return {
         "batch_id": batch.pk,
