@@ -51,6 +51,9 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         "workshop.check_in_workorder",
         "workshop.hand_back_workorder",
         "workshop.cancel_workorder",
+        # Payment at hand-back: taken and seen; one taken in error is voided by the owner.
+        "workshop.add_payment",
+        "workshop.view_payment",
         # Paper: the job card at check-in, the customer's service report at pickup.
         "documents.print_job_card",
         "documents.print_service_report",

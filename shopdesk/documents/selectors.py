@@ -19,6 +19,7 @@ from shopdesk.documents.models import DocumentWording
 from shopdesk.specs.models import Chamber, TorqueValue
 from shopdesk.workshop import diagnosis, selectors, services
 from shopdesk.workshop.models import OilRecord, PartUsed, ServiceRecord, SpringRecord, Status, WorkOrder
+from shopdesk.workshop.services.payments import payment_state
 
 CONTINUED = "… (continued on the job page)"
 
@@ -249,6 +250,7 @@ def service_report_context(work_order: WorkOrder, *, today: datetime.date | None
     parts = list(
         PartUsed.objects.filter(work_order=work_order, voided_at__isnull=True).select_related("part", "lot")
     )
+    price = services.job_price(work_order)
     return {
         "work_order": work_order,
         "unit": unit,
@@ -262,7 +264,8 @@ def service_report_context(work_order: WorkOrder, *, today: datetime.date | None
         "spring_plot": spring_plot(unit_model, springs),
         "stacks": stacks,
         "parts": parts,
-        "price": services.job_price(work_order),
+        "price": price,
+        "payment": payment_state(work_order, total=price.total.total),
         "due_dates": selectors.unit_due_dates(unit, today=today),
         "done_on": ServiceRecord.objects.filter(work_order=work_order)
         .order_by("-done_on")

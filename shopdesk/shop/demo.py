@@ -34,7 +34,7 @@ from shopdesk.customers.models import Customer, Unit
 from shopdesk.owner.services import ReminderRefused, due_refresh_all, reminder_send
 from shopdesk.specs.models import Chamber, Oil, ServiceInterval, ServiceType, TorqueValue, UnitModel
 from shopdesk.workshop import flow
-from shopdesk.workshop.models import FinalCheck, SpringRecord, Status, WorkOrder
+from shopdesk.workshop.models import FinalCheck, Payment, SpringRecord, Status, WorkOrder
 from shopdesk.workshop.services import (
     final_check_set,
     labour_add,
@@ -45,6 +45,7 @@ from shopdesk.workshop.services import (
     work_order_move,
     work_order_take,
 )
+from shopdesk.workshop.services.payments import payment_state, payment_take
 
 ModelT = TypeVar("ModelT", bound=models.Model)
 ValueT = TypeVar("ValueT")
@@ -408,6 +409,17 @@ def _work_order_walk(
             _bench_work_record(work_order, bench=bench_notes, users=users, at=halfway)
         if target == Status.READY_FOR_PICKUP:
             _final_checks_tick(work_order, by=users[roles.TECHNICIAN], at=halfway)
+        if target == Status.COLLECTED:
+            # Paid at the counter as it went back to the customer.
+            owed = payment_state(work_order).owed
+            if owed:
+                payment_take(
+                    work_order=work_order,
+                    amount=owed,
+                    method=entry.get("paid_by", Payment.Method.CARD),
+                    by=users[roles.FRONT_DESK],
+                    now=at - datetime.timedelta(minutes=1),
+                )
         note = notes.get(target, "")
         if target == Status.ON_THE_BENCH and work_order.assigned_to_id is None:
             # The technician takes the job: it is assigned to them and, from checked in, put on the bench.

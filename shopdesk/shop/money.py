@@ -6,12 +6,19 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 from decimal import ROUND_HALF_UP, Decimal
 
+from django.conf import settings
+
 CENT = Decimal("0.01")
 
 
 def round_money(amount: Decimal) -> Decimal:
     """Round to the cent, halves away from zero, as a till does."""
     return amount.quantize(CENT, rounding=ROUND_HALF_UP)
+
+
+def format_money(amount: Decimal) -> str:
+    """An amount as the shop shows it: its currency sign, to the cent, thousands separated."""
+    return f"{settings.SHOP_CURRENCY}{round_money(Decimal(amount)):,.2f}"
 
 
 @dataclass(frozen=True)

@@ -1,6 +1,6 @@
 from django.contrib import admin
 
-from shopdesk.workshop.models import RequestedService, WorkOrder, WorkOrderEvent
+from shopdesk.workshop.models import Payment, RequestedService, WorkOrder, WorkOrderEvent
 
 
 class RequestedServiceInline(admin.TabularInline):
@@ -13,6 +13,24 @@ class WorkOrderEventInline(admin.TabularInline):
     extra = 0
     readonly_fields = ["at", "by", "kind", "from_status", "to_status", "message"]
     can_delete = False
+
+
+class PaymentInline(admin.TabularInline):
+    """Shown, never edited here: payments are taken and voided on the job page, through their rules."""
+
+    model = Payment
+    extra = 0
+    max_num = 0
+    can_delete = False
+    fields = readonly_fields = [
+        "taken_at",
+        "taken_by",
+        "amount",
+        "method",
+        "reference",
+        "voided_at",
+        "void_reason",
+    ]
 
 
 @admin.register(WorkOrder)
@@ -33,4 +51,4 @@ class WorkOrderAdmin(admin.ModelAdmin):
         "status_changed_at",
     ]
     raw_id_fields = ["assigned_to"]
-    inlines = [RequestedServiceInline, WorkOrderEventInline]
+    inlines = [RequestedServiceInline, PaymentInline, WorkOrderEventInline]

@@ -25,15 +25,18 @@ from shopdesk.workshop.bench_forms import (
     shop_temperature,
 )
 from shopdesk.workshop.charts import spring_plot
+from shopdesk.workshop.forms import PaymentForm, PaymentVoidForm
 from shopdesk.workshop.models import (
     FinalCheck,
     LabourEntry,
     OilRecord,
     PartUsed,
+    Payment,
     ShimStackRecord,
     SpringRecord,
     WorkOrder,
 )
+from shopdesk.workshop.services.payments import payment_state
 
 RECORD_MODELS: dict[str, type] = {
     "oil": OilRecord,
@@ -78,6 +81,8 @@ class Overrides:
     spring: dict[str, tuple[SpringRecordForm, str]] = field(default_factory=dict)
     part: PartUsedForm | None = None
     labour: LabourForm | None = None
+    payment: PaymentForm | None = None
+    payment_void: tuple[int, PaymentVoidForm] | None = None
 
 
 def _job(number: str) -> WorkOrder:
@@ -168,6 +173,12 @@ def job_context(work_order: WorkOrder, user: Any, overrides: Overrides | None = 
         checks=checks,
     )
     may_override = user.has_perm("stock.override_stock")
+    price = services.job_price(work_order, records)
+    payment = payment_state(
+        work_order,
+        total=price.total.total,
+        payments=work_order.payments.select_related("taken_by", "voided_by"),
+    )
     return {
         "work_order": work_order,
         "unit_model": unit_model,
@@ -188,7 +199,19 @@ def job_context(work_order: WorkOrder, user: Any, overrides: Overrides | None = 
         "labour_form": overrides.labour or LabourForm(prefix="labour"),
         "checks": checks,
         "missing": services.missing_before_ready(work_order, records),
-        "price": services.job_price(work_order, records),
+        "price": price,
+        "payment": payment,
+        "payment_form": overrides.payment
+        or PaymentForm(prefix="payment", initial={"amount": payment.owed, "method": Payment.Method.CARD}),
+        "payment_rows": [
+            (
+                entry,
+                overrides.payment_void[1]
+                if overrides.payment_void and overrides.payment_void[0] == entry.pk
+                else PaymentVoidForm(prefix=f"void-payment-{entry.pk}"),
+            )
+            for entry in payment.payments
+        ],
         "torque_values": list(unit_model.torque_values.all()),
         "can_record": work_order.status in services.bench.RECORDING_STATUSES,
         "shop_temperature_c": shop_temperature().magnitude,

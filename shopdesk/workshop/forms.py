@@ -1,12 +1,15 @@
 from __future__ import annotations
 
 import datetime
+from decimal import Decimal
 from typing import Any
 
 from django import forms
 from django.utils import timezone
 
 from shopdesk.specs.models import ServiceType
+from shopdesk.stock.forms import MoneyField
+from shopdesk.workshop.models import Payment
 
 
 class CheckInForm(forms.Form):
@@ -44,3 +47,22 @@ class CheckInForm(forms.Form):
 class MoveForm(forms.Form):
     to = forms.CharField(max_length=20)
     note = forms.CharField(required=False, max_length=500)
+
+
+class PaymentForm(forms.Form):
+    """Money taken at the desk; the amount starts at what is still owed."""
+
+    amount = MoneyField(
+        max_digits=9,
+        decimal_places=2,
+        min_value=Decimal("0.01"),
+        help_text="What the customer paid now; less than the total is a part payment.",
+    )
+    method = forms.ChoiceField(choices=Payment.Method.choices)
+    reference = forms.CharField(
+        max_length=100, required=False, help_text="Optional: the card slip's number, a transfer's reference."
+    )
+
+
+class PaymentVoidForm(forms.Form):
+    reason = forms.CharField(max_length=200, label="Why is it wrong?")

@@ -1,6 +1,6 @@
 from django.urls import path
 
-from shopdesk.workshop import bench_views, revalve_views, views
+from shopdesk.workshop import bench_views, payment_views, revalve_views, views
 
 app_name = "workshop"
 
@@ -21,4 +21,8 @@ urlpatterns = [
     path("jobs/<str:number>/stacks/<str:valve>/<str:stage>/", revalve_views.stack_post, name="stack"),
     path("stack-library/<int:unit_model_id>/", revalve_views.stack_library, name="stack-library"),
     path("jobs/<str:number>/void/<str:kind>/<int:record_id>/", bench_views.record_void, name="void"),
+    path("jobs/<str:number>/payments/", payment_views.payment_take, name="payment"),
+    path(
+        "jobs/<str:number>/payments/<int:payment_id>/void/", payment_views.payment_void, name="payment-void"
+    ),
 ]

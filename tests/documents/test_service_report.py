@@ -7,6 +7,7 @@ from decimal import Decimal
 import pytest
 from django.core.exceptions import ValidationError
 from django.core.management import CommandError, call_command
+from django.utils import timezone
 
 from shopdesk.documents.models import DocumentWording
 from shopdesk.documents.renderer import render_document
@@ -124,3 +125,19 @@ def test_it_marks_a_service_that_is_already_overdue(ready_work_order, tmp_path):
     assert statuses == {"Lower-leg service": "ok", "Damper service": "ok", "Air-spring service": "overdue"}
     text = pdf_text(render_document(ready_work_order, "service_report").content, tmp_path)
     assert text.count("overdue: book it in") == 1
+
+
+def test_it_shows_what_was_paid_and_what_is_still_to_pay(ready_work_order, front_desk, tmp_path):
+    from shopdesk.workshop.services.payments import payment_take
+
+    total = services.job_price(ready_work_order).total.total
+    assert "Paid" not in pdf_text(render_document(ready_work_order, "service_report").content, tmp_path)
+    payment_take(work_order=ready_work_order, amount=Decimal("50.00"), method="cash", by=front_desk)
+    text = pdf_text(render_document(ready_work_order, "service_report").content, tmp_path)
+    # pdftotext reads the labels' column and the amounts' column apart: look for each.
+    today = timezone.localdate()
+    assert f"Paid {today.day} {today:%b %Y}, cash" in text and "£50.00" in text
+    assert "Still to pay" in text and money(total - Decimal("50.00")) in text
+    payment_take(work_order=ready_work_order, amount=total - Decimal("50.00"), method="card", by=front_desk)
+    text = pdf_text(render_document(ready_work_order, "service_report").content, tmp_path)
+    assert "Paid in full" in text and "Still to pay" not in text and "£0.00" in text

@@ -56,6 +56,8 @@ ACCESS: dict[str, tuple[str, set[str], int]] = {
     "workshop:stack": ("post", BENCH, 200),
     "workshop:stack-library": ("get", STAFF, 200),
     "workshop:void": ("post", BENCH, 302),
+    "workshop:payment": ("post", COUNTER, 200),  # the empty form again, its errors at the fields
+    "workshop:payment-void": ("post", {OWNER}, 200),  # a payment taken in error: the owner's
     "stock:list": ("get", STAFF, 200),
     "stock:part-new": ("get", {OWNER}, 200),
     "stock:part": ("get", STAFF, 200),
@@ -103,8 +105,10 @@ def shop(work_order, technician, front_desk, oil_part):
     from shopdesk.documents.models import PrintBatch
     from shopdesk.owner.models import DueService
     from shopdesk.owner.services import due_refresh, unsubscribe_token
+    from shopdesk.workshop.services.payments import payment_take
 
     finish_bench_work(work_order, technician, oil_part)
+    payment = payment_take(work_order=work_order, amount=Decimal("10.00"), method="cash", by=front_desk)
     unit = work_order.unit
     oil_record = work_order.oilrecord_set.first()
     batch = PrintBatch.objects.create(
@@ -120,6 +124,7 @@ def shop(work_order, technician, front_desk, oil_part):
     due_refresh(unit=unit)
     return {
         "batch_id": batch.pk,
+        "payment_id": payment.pk,
         "due_id": DueService.objects.filter(unit=unit).values_list("pk", flat=True).first(),
         "token": unsubscribe_token(customer_id=unit.customer_id),
         "table": "parts",

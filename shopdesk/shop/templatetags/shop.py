@@ -5,10 +5,9 @@ from __future__ import annotations
 from decimal import Decimal
 
 from django import template
-from django.conf import settings
 
 from shopdesk.shop import quantities
-from shopdesk.shop.money import round_money
+from shopdesk.shop.money import format_money
 
 register = template.Library()
 
@@ -33,7 +32,7 @@ def quantity(value: float | Decimal | None, kind: str) -> str:
 def money(value: Decimal | None) -> str:
     if value is None:
         return "—"
-    return f"{settings.SHOP_CURRENCY}{round_money(Decimal(value)):,.2f}"
+    return format_money(Decimal(value))
 
 
 @register.simple_tag

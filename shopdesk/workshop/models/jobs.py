@@ -8,6 +8,7 @@ from django.conf import settings
 from django.core.validators import MaxValueValidator, MinValueValidator
 from django.db import models
 from django.urls import reverse
+from simple_history.models import HistoricalRecords
 
 from shopdesk.customers.models import Customer, SetupFields, Unit
 from shopdesk.specs.models import ServiceType
@@ -131,6 +132,7 @@ class WorkOrderEvent(models.Model):
         ASSIGNED = "assigned", "Assigned"
         NOTE = "note", "Note"
         RECORD = "record", "Bench record"
+        PAYMENT = "payment", "Payment"
 
     work_order = models.ForeignKey(WorkOrder, on_delete=models.CASCADE, related_name="events")
     at = models.DateTimeField(db_index=True)
@@ -145,3 +147,43 @@ class WorkOrderEvent(models.Model):
 
     def __str__(self) -> str:
         return f"{self.work_order} {self.at:%Y-%m-%d %H:%M} {self.get_kind_display()}"
+
+
+class Payment(models.Model):
+    """Money taken for a job at the front desk. Nothing is deleted: a wrong entry is voided by the
+    owner with a reason and stays on the job; what is still owed is the job's total less the
+    payments that stand."""
+
+    class Method(models.TextChoices):
+        CARD = "card", "Card"
+        CASH = "cash", "Cash"
+        BANK_TRANSFER = "bank_transfer", "Bank transfer"
+        OTHER = "other", "Other"
+
+    work_order = models.ForeignKey(WorkOrder, on_delete=models.PROTECT, related_name="payments")
+    amount = models.DecimalField(
+        max_digits=9, decimal_places=2, validators=[MinValueValidator(Decimal("0.01"))]
+    )
+    method = models.CharField(max_length=20, choices=Method.choices)
+    reference = models.CharField(
+        max_length=100, blank=True, help_text="E.g. the card slip's number or the transfer's reference."
+    )
+    taken_at = models.DateTimeField()
+    taken_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
+    voided_at = models.DateTimeField(null=True, blank=True)
+    voided_by = models.ForeignKey(
+        settings.AUTH_USER_MODEL, on_delete=models.PROTECT, null=True, blank=True, related_name="+"
+    )
+    void_reason = models.CharField(max_length=200, blank=True)
+    history = HistoricalRecords()
+
+    class Meta:
+        ordering = ["taken_at", "id"]
+        permissions = [("void_payment", "Can void a payment taken in error")]
+
+    def __str__(self) -> str:
+        return f"{self.work_order}: {self.amount} by {self.get_method_display().lower()}"
+
+    @property
+    def is_void(self) -> bool:
+        return self.voided_at is not None
