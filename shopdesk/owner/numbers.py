@@ -189,6 +189,32 @@ def revenue_by_service(period: Period) -> list[dict]:
     ]
 
 
+def every_week(period: Period, rows: list[dict]) -> list[tuple[datetime.date, int]]:
+    """Jobs completed in each week of the period, Monday to Monday, a week with none as 0: a chart
+    of the weeks that had jobs would put a quiet month's weeks side by side with no gap."""
+    counts = {row["week"]: row["jobs"] for row in rows}
+    monday = timezone.localdate(period.start)
+    monday -= datetime.timedelta(days=monday.weekday())
+    last = timezone.localdate(period.end)
+    weeks = []
+    while monday <= last:
+        weeks.append((monday, counts.get(monday, 0)))
+        monday += datetime.timedelta(days=7)
+    return weeks
+
+
+def every_month(period: Period, rows: list[dict]) -> list[tuple[datetime.date, Decimal]]:
+    """Revenue in each month of the period, a month with none as 0.00."""
+    revenue = {row["month"]: row["revenue"] for row in rows}
+    month = timezone.localdate(period.start).replace(day=1)
+    last = timezone.localdate(period.end)
+    months = []
+    while month <= last:
+        months.append((month, revenue.get(month, Decimal("0.00"))))
+        month = (month + datetime.timedelta(days=32)).replace(day=1)
+    return months
+
+
 def revenue_by_month(period: Period) -> list[dict]:
     rows = (
         _completed_lines(period)

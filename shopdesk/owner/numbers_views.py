@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import csv
+import math
 from collections.abc import Callable
 from typing import Any
 
@@ -103,27 +104,28 @@ def numbers_page(request: HttpRequest) -> HttpResponse:
             for key, (title, _, columns) in TABLES.items()
         ]
         context["overall"] = numbers.turnaround_overall(period)
-        weeks = computed["weeks"]
-        months = computed["revenue-months"]
+        weeks = numbers.every_week(period, computed["weeks"])
+        months = numbers.every_month(period, computed["revenue-months"])
         context["charts"] = {
             "weeks": bar_plot(
-                [f"{row['week']:%d %b}" for row in weeks],
-                [row["jobs"] for row in weeks],
+                [f"{week:%d %b}" for week, _ in weeks],
+                [jobs for _, jobs in weeks],
                 y_label="Jobs completed",
                 title="Jobs completed per week",
                 id_prefix="chart-weeks",
-                every_nth_label=max(1, len(weeks) // 8),
+                every_nth_label=math.ceil(len(weeks) / 6),  # six dates fit the chart's width
             )
-            if weeks
+            if computed["weeks"]
             else "",
             "months": bar_plot(
-                [f"{row['month']:%b %y}" for row in months],
-                [float(row["revenue"]) for row in months],
+                [f"{month:%b %y}" for month, _ in months],
+                [float(revenue) for _, revenue in months],
                 y_label="Revenue before tax",
                 title="Revenue by month",
                 id_prefix="chart-months",
+                every_nth_label=math.ceil(len(months) / 12),
             )
-            if months
+            if computed["revenue-months"]
             else "",
         }
     return render(request, "owner/numbers.html", context)

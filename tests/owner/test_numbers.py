@@ -109,3 +109,37 @@ def test_the_page_draws_charts_and_refuses_impossible_periods(client, owner, com
         assert response.status_code == 200
         assert words in " ".join(response.context["form"].errors["months"])
     assert client.get("/owner/numbers/nothing.csv").status_code == 404
+
+
+def test_the_charts_have_every_week_and_month_of_the_period_even_the_empty_ones() -> None:
+    from dateutil.rrule import MO, MONTHLY, WEEKLY, rrule
+
+    now = timezone.make_aware(datetime.datetime(2026, 12, 4, 15, 0))
+    period = numbers.Period.last_months(3, now=now)  # 1 October to 4 December
+    busy = [
+        {"week": datetime.date(2026, 10, 12), "jobs": 2},
+        {"week": datetime.date(2026, 11, 30), "jobs": 1},
+    ]
+    weeks = numbers.every_week(period, busy)
+    # The Mondays from the week holding 1 October to the one holding 4 December, by dateutil.
+    mondays = [
+        day.date()
+        for day in rrule(
+            WEEKLY, byweekday=MO, dtstart=datetime.datetime(2026, 9, 28), until=datetime.datetime(2026, 12, 4)
+        )
+    ]
+    assert [week for week, _ in weeks] == mondays and len(mondays) == 10
+    assert dict(weeks) == {
+        monday: {datetime.date(2026, 10, 12): 2, datetime.date(2026, 11, 30): 1}.get(monday, 0)
+        for monday in mondays
+    }
+    months = numbers.every_month(
+        period, [{"month": datetime.date(2026, 11, 1), "revenue": Decimal("134.50")}]
+    )
+    firsts = [
+        day.date()
+        for day in rrule(MONTHLY, dtstart=datetime.datetime(2026, 10, 1), until=now.replace(tzinfo=None))
+    ]
+    assert months == [
+        (first, Decimal("134.50") if first.month == 11 else Decimal("0.00")) for first in firsts
+    ]
