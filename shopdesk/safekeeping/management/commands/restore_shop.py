@@ -24,7 +24,7 @@ class Command(BaseCommand):
             if answer.strip().lower() != "yes":
                 raise CommandError("Nothing restored.")
         try:
-            kind = restore(path, database_url=database_url)
+            restored = restore(path, database_url=database_url)
         except BackupError as error:
             raise CommandError(str(error)) from error
-        self.stdout.write(f"Restored ({kind}) from {path}.")
+        self.stdout.write(f"Restored ({restored.kind}) from {path} into {restored.into}.")
