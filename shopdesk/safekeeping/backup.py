@@ -357,6 +357,8 @@ def restore(
             _restore_pg_dump(path, target)
         else:
             _restore_dumpdata(path, target)
+        if kind != "xml":
+            _migrate_restored(path, target)
     # Content types may have other ids now; the cache would hand out the old ones.
     ContentType.objects.clear_cache()
     return Restored(kind, described.name)
@@ -390,6 +392,22 @@ def _restore_pg_dump(path: Path, target: BaseDatabaseWrapper) -> None:
         ],
         env,
     )
+
+
+def _migrate_restored(path: Path, target: BaseDatabaseWrapper) -> None:
+    """Bring a restored SQLite or pg_dump copy to this version's tables.
+
+    Those copies carry the tables of the version that made them: a copy from before an upgrade
+    would otherwise leave the shop running this version's code on last version's tables. A copy
+    of this version migrates nothing. (A dumpdata copy was loaded into migrated tables already.)
+    """
+    try:
+        call_command("migrate", database=target.alias, interactive=False, verbosity=0)
+    except (CommandError, DatabaseError) as error:
+        raise BackupError(
+            f"{path} was restored, but bringing its tables to this version failed: {error}. "
+            "Run manage.py migrate and read its error, or restore with the version that made the copy."
+        ) from error
 
 
 def _restore_dumpdata(path: Path, target: BaseDatabaseWrapper) -> None:
