@@ -109,28 +109,34 @@ OWNER_APPS = (
 def sync_roles(apps: Any, schema_editor: Any = None) -> None:
     """Create the three groups and give each exactly its permissions. Safe to run again."""
     from django.contrib.auth.management import create_permissions
+    from django.db import DEFAULT_DB_ALIAS
 
+    # The database being migrated: `restore_shop --database-url` migrates another database than
+    # the shop's own, and the roles belong in that one.
+    using = schema_editor.connection.alias if schema_editor is not None else DEFAULT_DB_ALIAS
     for app_config in apps.get_app_configs():
         # Historical app configs have no models module; put back what was there, so that a call
         # with the live registry (tests after a flush) leaves dumpdata able to see the models.
         previous = getattr(app_config, "models_module", None)
         app_config.models_module = True
-        create_permissions(app_config, apps=apps, verbosity=0)
+        create_permissions(app_config, apps=apps, verbosity=0, using=using)
         app_config.models_module = previous
 
     Group = apps.get_model("auth", "Group")
     Permission = apps.get_model("auth", "Permission")
     for role, names in ROLE_PERMISSIONS.items():
-        group, _ = Group.objects.get_or_create(name=role)
+        group, _ = Group.objects.using(using).get_or_create(name=role)
         if names == ["*"]:
-            permissions = list(Permission.objects.filter(content_type__app_label__in=OWNER_APPS))
+            permissions = list(Permission.objects.using(using).filter(content_type__app_label__in=OWNER_APPS))
         else:
             permissions = []
             for name in names:
                 app_label, codename = name.split(".")
-                permission = Permission.objects.filter(
-                    content_type__app_label=app_label, codename=codename
-                ).first()
+                permission = (
+                    Permission.objects.using(using)
+                    .filter(content_type__app_label=app_label, codename=codename)
+                    .first()
+                )
                 # A permission of a model not migrated yet is picked up by a later sync.
                 if permission is not None:
                     permissions.append(permission)

@@ -1,3 +1,4 @@
+import pytest
 from django.contrib.auth.models import Group, Permission
 
 from shopdesk.accounts import roles
@@ -45,3 +46,32 @@ def test_it_refuses_a_wrong_password_with_a_message(client, front_desk) -> None:
     response = client.post("/accounts/sign-in/", {"username": "desk", "password": "not-the-password"})
     assert response.status_code == 200
     assert "correct username and password" in response.content.decode()
+
+
+@pytest.mark.django_db(transaction=True)
+def test_migrating_another_database_gives_the_roles_to_that_one(tmp_path) -> None:
+    """restore_shop --database-url migrates a scratch database; its roles must not land in the shop's."""
+    from django.core.management import call_command
+    from django.db import connections
+    from django.db.utils import load_backend
+
+    alias = "roles_elsewhere"
+    elsewhere = connections.configure_settings(
+        {
+            "default": connections.settings["default"],
+            alias: {"ENGINE": "django.db.backends.sqlite3", "NAME": str(tmp_path / "elsewhere.sqlite3")},
+        }
+    )[alias]
+    # Made here, as restore_shop makes its target's, rather than declared in the settings.
+    connections[alias] = load_backend(elsewhere["ENGINE"]).DatabaseWrapper(elsewhere, alias)
+    Group.objects.all().delete()
+    try:
+        call_command("migrate", database=alias, interactive=False, verbosity=0)
+        owner = Group.objects.using(alias).get(name=roles.OWNER)
+        expected = Permission.objects.using(alias).filter(content_type__app_label__in=roles.OWNER_APPS)
+        assert owner.permissions.count() == expected.count() > 0
+        assert Group.objects.using(alias).filter(name=roles.FRONT_DESK).exists()
+        assert not Group.objects.exists()  # nothing written to the shop's own database
+    finally:
+        connections[alias].close()
+        del connections[alias]

@@ -22,7 +22,8 @@ def create(apps, schema_editor):
     from django.db import transaction
 
     try:
-        with transaction.atomic():
+        # On the database being migrated (restore_shop migrates other databases than the default).
+        with transaction.atomic(using=schema_editor.connection.alias):
             schema_editor.execute("CREATE EXTENSION IF NOT EXISTS pg_trgm")
     except Exception as error:  # a user without the right to create extensions
         print(f"\n  Trigram search indexes skipped: {error}")

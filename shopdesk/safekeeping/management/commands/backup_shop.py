@@ -2,7 +2,7 @@ from pathlib import Path
 
 from django.core.management.base import BaseCommand, CommandError, CommandParser
 
-from shopdesk.safekeeping.backup import BackupError, backup
+from shopdesk.safekeeping.backup import KINDS, BackupError, backup
 
 
 class Command(BaseCommand):
@@ -12,7 +12,7 @@ class Command(BaseCommand):
         parser.add_argument("path", type=Path)
         parser.add_argument(
             "--kind",
-            choices=["sqlite", "pg_dump", "xml"],
+            choices=KINDS,
             help="Force a kind of copy (default: the database's own; xml where no tool is present).",
         )
 

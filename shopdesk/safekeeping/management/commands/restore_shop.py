@@ -1,8 +1,9 @@
+import sys
 from pathlib import Path
 
 from django.core.management.base import BaseCommand, CommandError, CommandParser
 
-from shopdesk.safekeeping.backup import BackupError, restore
+from shopdesk.safekeeping.backup import BackupError, Target, restore
 
 
 class Command(BaseCommand):
@@ -14,17 +15,29 @@ class Command(BaseCommand):
             "--database-url",
             help="Restore into this database instead (e.g. a scratch one, to check a backup).",
         )
-        parser.add_argument("--yes", action="store_true", help="Do not ask before replacing.")
+        parser.add_argument(
+            "--yes", action="store_true", help="Do not ask before replacing what the database holds."
+        )
 
     def handle(
         self, *args: object, path: Path, database_url: str | None, yes: bool, **options: object
     ) -> None:
-        if not yes:
-            answer = input("Everything in the target database will be replaced. Type 'yes' to go on: ")
+        def confirm(target: Target) -> None:
+            if yes:
+                return
+            question = f"{target.name} holds {target.holds}; restoring {path} replaces all of it."
+            # Run from cron or a script there is nobody to answer: say so rather than fail on input().
+            if not sys.stdin.isatty():
+                raise CommandError(f"{question} Nothing restored: run again with --yes to go on.")
+            try:
+                answer = input(f"{question} Type 'yes' to go on: ")
+            except EOFError:
+                answer = ""
             if answer.strip().lower() != "yes":
                 raise CommandError("Nothing restored.")
+
         try:
-            kind = restore(path, database_url=database_url)
+            restored = restore(path, database_url=database_url, confirm=confirm)
         except BackupError as error:
             raise CommandError(str(error)) from error
-        self.stdout.write(f"Restored ({kind}) from {path}.")
+        self.stdout.write(f"Restored ({restored.kind}) from {path} into {restored.into}.")
