@@ -53,6 +53,7 @@ EXPORTED = [
     "workshop.FinalCheck",
     "workshop.ShimStackRecord",
     "workshop.ServiceRecord",
+    "workshop.Payment",
     # Stock.
     "stock.Part",
     "stock.StockLot",

@@ -35,6 +35,7 @@ def whole_shop(work_order, role_users, technician, owner, oil_part, air_fork_mod
     from shopdesk.stock.services import stock_adjust
     from shopdesk.workshop import services
     from shopdesk.workshop.models import LabourEntry, Status
+    from shopdesk.workshop.services.payments import payment_take, payment_void
     from shopdesk.workshop.services.revalve import shim_stack_save, stack_preset_save
     from tests.conftest import finish_bench_work
 
@@ -76,6 +77,11 @@ def whole_shop(work_order, role_users, technician, owner, oil_part, air_fork_mod
     finish_bench_work(work_order, technician, oil_part)
     services.work_order_move(work_order=work_order, target=Status.FINAL_CHECK, by=technician)
     services.work_order_move(work_order=work_order, target=Status.READY_FOR_PICKUP, by=technician)
+    taken = payment_take(
+        work_order=work_order, amount=Decimal("20.00"), method="cash", by=role_users["front_desk"]
+    )
+    payment_void(payment=taken, reason="Counted twice", by=owner)
+    payment_take(work_order=work_order, amount=Decimal("20.00"), method="card", by=role_users["front_desk"])
     stock_adjust(part=oil_part, quantity=Decimal("-3"), reason="Spilt on the bench", by=owner)
     due_refresh(unit=work_order.unit)
     due = DueService.objects.filter(unit=work_order.unit).order_by("pk").first()
