@@ -260,6 +260,8 @@ DATA_UPLOAD_MAX_MEMORY_SIZE = 2_621_440
 DATA_UPLOAD_MAX_NUMBER_FIELDS = 1000
 FILE_UPLOAD_MAX_MEMORY_SIZE = 2_621_440
 CSRF_COOKIE_HTTPONLY = False  # htmx reads no cookie: the token is sent from the page's <body>
+# A form refused by the CSRF check gets the shop's page (Django's own has an inline style).
+CSRF_FAILURE_VIEW = "shopdesk.shop.views.csrf_failure"
 X_FRAME_OPTIONS = "DENY"
 if not DEBUG:
     SECURE_PROXY_SSL_HEADER = ("HTTP_X_FORWARDED_PROTO", "https")
