@@ -14,6 +14,8 @@ import pytest
 from django.contrib import admin
 from django.urls import get_resolver, reverse
 
+from shopdesk.workshop import flow
+from shopdesk.workshop.models import Status, WorkOrder, WorkOrderEvent
 from tests.accounts.test_access import _walk
 from tests.conftest import finish_bench_work
 
@@ -296,3 +298,44 @@ def test_guessed_ids_and_ids_of_another_record_type_show_nothing(client, owner, 
                 if other is not None:
                     assert MARKERS[other] not in page, f"{url} shows the {other} record's data"
     assert tried >= 15, tried
+
+
+# Who may make each kind of move, as the role table says (DEVELOPERS.md, "Roles"): the bench's
+# moves are the technician's; checking in (to waiting for parts), handing back and cancelling are
+# the front desk's; the owner may make every move.
+MOVERS = {
+    flow.BENCH: {TECH, OWNER},
+    flow.FRONT_DESK: {DESK, OWNER},
+    flow.HAND_BACK: {DESK, OWNER},
+    flow.CANCEL: {DESK, OWNER},
+}
+
+
+@pytest.mark.django_db
+@pytest.mark.parametrize("move", flow.MOVES, ids=lambda move: f"{move.source.value}-to-{move.target.value}")
+@pytest.mark.parametrize("role", ROLES)
+def test_each_move_is_made_exactly_by_the_roles_the_table_allows(
+    client, role_users, work_order, technician, oil_part, move, role
+) -> None:
+    if move.target == Status.READY_FOR_PICKUP:
+        finish_bench_work(work_order, technician, oil_part)  # nothing missing: only the role decides
+    WorkOrder.objects.filter(pk=work_order.pk).update(status=move.source)
+    events = WorkOrderEvent.objects.filter(work_order=work_order).count()
+    if role != ANON:
+        client.force_login(role_users[role])
+    response = client.post(reverse("workshop:move", args=[work_order.number]), {"to": move.target.value})
+    work_order.refresh_from_db()
+    if role in set().union(*(MOVERS[permission] for permission in move.permissions)):
+        assert response.status_code == 302 and response["Location"] == work_order.get_absolute_url()
+        assert work_order.status == move.target
+        stamped = WorkOrderEvent.objects.filter(work_order=work_order).order_by("pk").last()
+        assert (stamped.from_status, stamped.to_status) == (move.source, move.target)
+        assert stamped.by == role_users[role]
+        return
+    assert work_order.status == move.source, "refused, but the status changed"
+    assert WorkOrderEvent.objects.filter(work_order=work_order).count() == events
+    if role == ANON:
+        assert response.status_code == 302 and response["Location"].startswith(reverse("accounts:sign-in"))
+    else:
+        assert response.status_code == 403
+        assert "Not for your role" in response.content.decode()
