@@ -25,6 +25,9 @@ $(VENV)/.installed-dev: $(VENV)/.installed requirements-dev.txt
 setup: $(VENV)/.installed
 setup-dev: $(VENV)/.installed-dev
 
+# The demo shop on a developer's machine. DEBUG is off unless set (a server started without its
+# settings must not show stack traces), so development mode is asked for here.
+run: export DEBUG = true
 run: setup
 	$(PY) manage.py migrate --noinput
 	$(PY) manage.py seed_demo

@@ -61,6 +61,7 @@ def main() -> None:
     _prepare_database(url)
     os.environ["DATABASE_URL"] = url
     os.environ.setdefault("DJANGO_SETTINGS_MODULE", "shopdesk.settings")
+    os.environ.setdefault("DEBUG", "true")  # development settings: DEBUG is off unless set
 
     import django
 

@@ -368,7 +368,9 @@ def main() -> None:
     _prepare_database(url)
     password = secrets.token_urlsafe(18)
     env = {k: v for k, v in os.environ.items() if not k.startswith("SHOPDESK_")}
-    env.update(DATABASE_URL=url, DJANGO_SETTINGS_MODULE="shopdesk.settings")
+    # Development settings for building the data set (DEBUG is off unless set); the server below
+    # runs with production settings.
+    env.update(DATABASE_URL=url, DJANGO_SETTINGS_MODULE="shopdesk.settings", DEBUG="true")
     started = time.perf_counter()
     _manage(env, "migrate", "--noinput", "-v0")
     _manage(env, "seed_demo", "-v0")

@@ -1,8 +1,11 @@
 """ShopDesk settings: one module, configured from the environment.
 
-Every variable is optional while ``DEBUG`` is on, so that ``make run`` needs no
-set-up; with ``DEBUG`` off, ``SECRET_KEY`` must be given. A value that cannot be
-read stops start-up with a message naming the variable.
+``DEBUG`` is off unless the environment turns it on, so a server started without
+its settings is a production server: it refuses to start without ``SECRET_KEY``
+and never shows Django's debug pages. ``make run`` sets ``DEBUG=true``, and the
+test commands' ``SHOPDESK_TESTING=true`` implies it; then every other variable is
+optional. A value that cannot be read stops start-up with a message naming the
+variable.
 """
 
 from __future__ import annotations
@@ -70,14 +73,23 @@ def env_decimal(name: str, default: str, *, minimum: Decimal, maximum: Decimal) 
     return value
 
 
-DEBUG = env_bool("DEBUG", True)
 TESTING = env_bool("SHOPDESK_TESTING", False)
+# Off by default: a gunicorn started without the environment must not show stack traces. The
+# tests run with the development defaults, as they always have (Django's test runner turns DEBUG
+# itself off while they run).
+DEBUG = env_bool("DEBUG", TESTING)
 
 if DEBUG:
     # Only for a developer's own machine; refused below when DEBUG is off.
     SECRET_KEY = env_str("SECRET_KEY", "insecure-development-key-do-not-use-in-a-shop")
 else:
-    SECRET_KEY = env_str("SECRET_KEY")
+    SECRET_KEY = os.environ.get("SECRET_KEY", "")
+    if not SECRET_KEY:
+        raise ImproperlyConfigured(
+            "SECRET_KEY is not set. DEBUG is off (it is unless set), so this is a shop's server: set "
+            "SECRET_KEY to a random string of at least 50 characters, or DEBUG=true on a developer's "
+            "own machine."
+        )
     if len(SECRET_KEY) < 50 or SECRET_KEY.startswith("insecure"):
         raise ImproperlyConfigured("SECRET_KEY must be a random string of at least 50 characters.")
 
@@ -260,6 +272,8 @@ DATA_UPLOAD_MAX_MEMORY_SIZE = 2_621_440
 DATA_UPLOAD_MAX_NUMBER_FIELDS = 1000
 FILE_UPLOAD_MAX_MEMORY_SIZE = 2_621_440
 CSRF_COOKIE_HTTPONLY = False  # htmx reads no cookie: the token is sent from the page's <body>
+# A form refused by the CSRF check gets the shop's page (Django's own has an inline style).
+CSRF_FAILURE_VIEW = "shopdesk.shop.views.csrf_failure"
 X_FRAME_OPTIONS = "DENY"
 if not DEBUG:
     SECURE_PROXY_SSL_HEADER = ("HTTP_X_FORWARDED_PROTO", "https")

@@ -3,8 +3,10 @@
 ``print_batch_start`` records the batch and hands it to a background thread once the row is
 committed (``SHOP_PRINT_IN_BACKGROUND``; tests render in the request). ``print_batch_render`` is
 the worker: it renders through the one renderer, counting each card so the page can show
-progress, and keeps the PDF on the batch's row, where any app server can read it. Any failure is
-kept on the row with its reason; nothing is lost and the page says what went wrong.
+progress, and keeps the PDF on the batch's row, where any app server can read it. A failure is
+logged with its traceback and kept on the row with its reason (the owner's admin shows it); the
+batch's page says in plain words that it failed, never the exception's text, which may name files
+and settings of the server.
 """
 
 from __future__ import annotations

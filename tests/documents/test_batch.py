@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import datetime
+import logging
 
 import pytest
 from django.urls import reverse
@@ -43,9 +44,11 @@ def test_the_worker_renders_one_card_a_page_in_order(three_jobs, front_desk, tmp
     assert services.print_batch_render(batch_id=batch.pk).finished_at == done.finished_at
 
 
-def test_a_failed_batch_keeps_its_reason(three_jobs, front_desk, monkeypatch):
+def test_a_failed_batch_says_so_plainly_and_logs_the_details(
+    client, three_jobs, front_desk, monkeypatch, caplog
+):
     def no_fonts(*args, **kwargs):
-        raise OSError("no usable font found")
+        raise OSError("no usable font found in /usr/share/fonts")
 
     monkeypatch.setattr(services, "render_job_cards", no_fonts)
     batch = PrintBatch.objects.create(
@@ -54,10 +57,26 @@ def test_a_failed_batch_keeps_its_reason(three_jobs, front_desk, monkeypatch):
         numbers=[three_jobs["yesterday"].number],
         base_url="/",
     )
-    failed = services.print_batch_render(batch_id=batch.pk)
+    with caplog.at_level(logging.ERROR, logger="shopdesk.documents.services"):
+        failed = services.print_batch_render(batch_id=batch.pk)
     assert failed.state == PrintBatch.State.FAILED
-    assert failed.error == "OSError: no usable font found"
     assert not PrintBatch.objects.get(pk=batch.pk).pdf
+    assert failed.error == "OSError: no usable font found in /usr/share/fonts"  # the owner's admin only
+    # The log has the details, traceback and all.
+    [record] = [r for r in caplog.records if r.name == "shopdesk.documents.services"]
+    assert record.getMessage() == f"Print batch {batch.pk} failed"
+    assert record.exc_info[0] is OSError
+    assert "no usable font found in /usr/share/fonts" in caplog.text
+    # The page, and the fragment it polls, say it plainly and show nothing of the exception.
+    client.force_login(front_desk)
+    for headers in ({}, {"HTTP_HX_REQUEST": "true"}):
+        page = client.get(reverse("documents:batch", args=[batch.pk]), **headers).content.decode()
+        assert (
+            "The job cards could not be made. Try again; if it keeps failing, the owner can find the "
+            "details in the server's log." in page
+        )
+        assert "OSError" not in page and "no usable font" not in page and "/usr/share" not in page
+        assert reverse("documents:batch-new") in page  # the way to try again
 
 
 def test_the_page_prints_todays_check_ins_and_offers_the_file(client, front_desk, three_jobs, tmp_path):

@@ -90,3 +90,88 @@ def test_the_grep_catches_what_it_looks_for(tmp_path) -> None:
         for line in bad
     )
     assert not re.search(r"<script\b(?![^>]*\bsrc=)", good)
+
+
+# The patterns the template grep above looks for, on a page as the browser gets it.
+INLINE = {
+    "<script> without src": r"<script\b(?![^>]*\bsrc=)",
+    "inline event handler": r"<[a-z][^>]*\son[a-z]+\s*=",
+    "style attribute": r"<[a-z][^>]*\sstyle\s*=",
+    "<style> block": r"<style\b",
+}
+
+
+def _inline_code(page: str) -> list[str]:
+    return [what for what, pattern in INLINE.items() if re.search(pattern, page, re.IGNORECASE)]
+
+
+def test_the_page_grep_catches_what_it_looks_for() -> None:
+    assert _inline_code('<p class="paginator" style="border-top: 0">') == ["style attribute"]
+    assert _inline_code("<style>\n#changelist th {width: inherit}\n</style>") == ["<style> block"]
+    assert _inline_code('<a href="#" onclick="go()">') == ["inline event handler"]
+    assert _inline_code('<script src="/static/admin/js/theme.js"></script><p>Based on=spec</p>') == []
+
+
+@pytest.mark.django_db
+def test_the_owners_admin_pages_have_no_inline_script_or_style(
+    client, owner, technician, work_order, oil_part
+):
+    """Every admin page the owner uses, for every model the admin shows: Django's admin is written
+    for a strict policy, third-party admin templates (simple_history's) are not always."""
+    from axes.models import AccessAttempt
+    from django.contrib import admin
+    from django.utils import timezone
+
+    from shopdesk.documents.models import PrintBatch
+    from tests.conftest import PASSWORD, finish_bench_work
+
+    finish_bench_work(work_order, technician, oil_part)  # bench records, checks, stock movements
+    PrintBatch.objects.create(
+        created_at=timezone.now(), created_by=owner, numbers=[work_order.number], base_url="/", pdf=b"%PDF"
+    )
+    oil_part.name = "Test 5 wt oil, 1 L"
+    oil_part.save()  # a second version in the part's history
+    # A wrong password (a row in the sign-in lock list), then the owner's own sign-in.
+    client.post(reverse("accounts:sign-in"), {"username": "desk", "password": "not-it"})
+    client.post(reverse("accounts:sign-in"), {"username": "owner", "password": PASSWORD})
+    assert AccessAttempt.objects.exists()
+
+    urls = [
+        reverse("admin:index"),
+        reverse("admin:app_list", args=["stock"]),
+        reverse("admin:password_change"),
+        reverse("admin:auth_user_password_change", args=[owner.pk]),
+    ]
+    for model, model_admin in admin.site._registry.items():
+        info = f"admin:{model._meta.app_label}_{model._meta.model_name}"
+        urls.append(reverse(f"{info}_changelist"))
+        if model_admin.has_add_permission(_owner_request(owner)):
+            urls.append(reverse(f"{info}_add"))
+        obj = model._default_manager.order_by("pk").first()
+        if obj is not None:
+            urls += [reverse(f"{info}_change", args=[obj.pk]), reverse(f"{info}_history", args=[obj.pk])]
+            if model_admin.has_delete_permission(_owner_request(owner), obj):
+                urls.append(reverse(f"{info}_delete", args=[obj.pk]))
+    version = oil_part.history.order_by("history_id").first()
+    urls.append(reverse("admin:stock_part_simple_history", args=[oil_part.pk, version.history_id]))
+    # The pages that carried inline code before are among those tried.
+    assert reverse("admin:stock_part_history", args=[oil_part.pk]) in urls
+    assert reverse("admin:axes_accessattempt_changelist") in urls
+
+    found = []
+    for url in urls:
+        response = client.get(url)
+        assert response.status_code == 200, url
+        found += [f"{url}: {what}" for what in _inline_code(response.content.decode())]
+    assert not found, "\n".join(found)
+    # The history list's count under the table keeps its look from the shop's admin style sheet.
+    history = client.get(reverse("admin:stock_part_history", args=[oil_part.pk])).content.decode()
+    assert '<p class="paginator">' in history and "/static/css/admin.css" in history
+
+
+def _owner_request(owner):
+    from django.test import RequestFactory
+
+    request = RequestFactory().get("/admin/")
+    request.user = owner
+    return request

@@ -16,7 +16,7 @@ PROBE = "import json, django; django.setup(); from django.conf import settings; 
 
 def _options(**environment: str) -> dict:
     env = {k: v for k, v in os.environ.items() if not k.startswith(("SHOPDESK_", "DATABASE_"))}
-    env.update(DJANGO_SETTINGS_MODULE="shopdesk.settings", **environment)
+    env.update(DJANGO_SETTINGS_MODULE="shopdesk.settings", DEBUG="true", **environment)
     result = subprocess.run(
         [sys.executable, "-c", PROBE], cwd=ROOT, env=env, capture_output=True, text=True, timeout=60
     )
@@ -46,7 +46,10 @@ def test_sqlite_is_left_as_it_was(tmp_path) -> None:
 def test_a_value_that_is_not_true_or_false_stops_start_up_with_its_name(value) -> None:
     env = {k: v for k, v in os.environ.items() if not k.startswith(("SHOPDESK_", "DATABASE_"))}
     env.update(
-        DJANGO_SETTINGS_MODULE="shopdesk.settings", DATABASE_URL=POSTGRES, DATABASE_PREPARED_STATEMENTS=value
+        DJANGO_SETTINGS_MODULE="shopdesk.settings",
+        DEBUG="true",
+        DATABASE_URL=POSTGRES,
+        DATABASE_PREPARED_STATEMENTS=value,
     )
     result = subprocess.run(
         [sys.executable, "-c", PROBE], cwd=ROOT, env=env, capture_output=True, text=True, timeout=60

@@ -2,9 +2,11 @@
 
 from __future__ import annotations
 
+import re
+
 import pytest
 from django.conf import settings
-from django.test import override_settings
+from django.test import Client, override_settings
 from django.urls import path, reverse
 
 from shopdesk import urls as shop_urls
@@ -85,3 +87,53 @@ def test_a_failure_gets_the_500_page_without_its_details(client, front_desk) -> 
     page = _assert_no_debug_page(response)
     assert "Something went wrong" in page
     assert "secret detail" not in page and "RuntimeError" not in page
+
+
+def _assert_no_inline_style_or_script(page: str) -> None:
+    assert "<style" not in page.lower()
+    assert not re.search(r"\sstyle\s*=", page, re.IGNORECASE)
+    assert not re.search(r"<script\b(?![^>]*\bsrc=)", page, re.IGNORECASE)
+
+
+def test_a_form_sent_without_its_token_gets_the_shops_page(front_desk) -> None:
+    client = Client(enforce_csrf_checks=True)
+    client.force_login(front_desk)
+    assert client.get(reverse("customers:customer-new")).status_code == 200  # sets the CSRF cookie
+    response = client.post(
+        reverse("customers:customer-new"),
+        {"name": "No Token", "phone": "01632 960 999"},
+        HTTP_REFERER="http://testserver/customers/new/?from=desk",
+    )
+    assert response.status_code == 403
+    page = _assert_no_debug_page(response)
+    _assert_no_inline_style_or_script(page)
+    assert "CSRF verification failed" not in page  # Django's own page
+    assert "The form was not sent" in page and "The form was open too long" in page
+    assert "Nothing was saved, and you are still signed in." in page
+    assert '<a href="/customers/new/?from=desk">Open the form' in page
+    assert "Content-Security-Policy" in response.headers
+    assert not Customer.objects.filter(name="No Token").exists()
+    # Still signed in, as the page says, with a token that a reloaded form sends.
+    assert client.get(reverse("shop:home")).status_code == 200
+    form = client.get(reverse("customers:customer-new")).content.decode()
+    token = re.search(r'name="csrfmiddlewaretoken" value="([^"]+)"', form).group(1)
+    again = client.post(
+        reverse("customers:customer-new"),
+        {"name": "No Token", "phone": "01632 960 999", "csrfmiddlewaretoken": token},
+    )
+    assert again.status_code == 302 and Customer.objects.filter(name="No Token").exists()
+
+
+def test_a_sign_in_without_a_cookie_is_told_cookies_are_needed(front_desk) -> None:
+    client = Client(enforce_csrf_checks=True)
+    response = client.post(
+        reverse("accounts:sign-in"),
+        {"username": "desk", "password": "x"},
+        HTTP_REFERER="https://elsewhere.example/sign-in/",
+    )
+    assert response.status_code == 403
+    page = _assert_no_debug_page(response)
+    _assert_no_inline_style_or_script(page)
+    assert "without this shop's cookie" in page and "Nothing was saved." in page
+    assert "still signed in" not in page
+    assert "elsewhere.example" not in page  # another site's address is never offered as a link

@@ -11,9 +11,12 @@ import re
 from decimal import Decimal
 
 import pytest
+from django.apps import apps
 from django.contrib import admin
 from django.urls import get_resolver, reverse
 
+from shopdesk.workshop import flow
+from shopdesk.workshop.models import Status, WorkOrder, WorkOrderEvent
 from tests.accounts.test_access import _walk
 from tests.conftest import finish_bench_work
 
@@ -253,12 +256,14 @@ MARKERS = {
     "unit_id": "RF34-0001",
     "part_id": "OIL-5WT",
     "unit_model_id": "Ridge 34",
+    "batch_id": "in one PDF",
 }
 
 
 @pytest.mark.django_db
 def test_guessed_ids_and_ids_of_another_record_type_show_nothing(client, owner, shop) -> None:
     from shopdesk.customers.models import Customer, Unit
+    from shopdesk.documents.models import PrintBatch
     from shopdesk.specs.models import UnitModel
     from shopdesk.stock.models import Part
 
@@ -271,7 +276,13 @@ def test_guessed_ids_and_ids_of_another_record_type_show_nothing(client, owner, 
             cost=Decimal("2"),
             price=Decimal("6"),
         )
-    models_of = {"customer_id": Customer, "unit_id": Unit, "part_id": Part, "unit_model_id": UnitModel}
+    models_of = {
+        "customer_id": Customer,
+        "unit_id": Unit,
+        "part_id": Part,
+        "unit_model_id": UnitModel,
+        "batch_id": PrintBatch,
+    }
     client.force_login(owner)  # every permission: a 404 here is the record's absence, not the role
     tried = 0
     for pattern, name in PATTERNS:
@@ -300,4 +311,197 @@ def test_guessed_ids_and_ids_of_another_record_type_show_nothing(client, owner, 
                 assert "There is no such page or record" in page, url
                 if other is not None:
                     assert MARKERS[other] not in page, f"{url} shows the {other} record's data"
-    assert tried >= 15, tried
+    assert tried >= 18, tried
+
+
+# Who may make each kind of move, as the role table says (DEVELOPERS.md, "Roles"): the bench's
+# moves are the technician's; checking in (to waiting for parts), handing back and cancelling are
+# the front desk's; the owner may make every move.
+MOVERS = {
+    flow.BENCH: {TECH, OWNER},
+    flow.FRONT_DESK: {DESK, OWNER},
+    flow.HAND_BACK: {DESK, OWNER},
+    flow.CANCEL: {DESK, OWNER},
+}
+
+
+@pytest.mark.django_db
+@pytest.mark.parametrize("move", flow.MOVES, ids=lambda move: f"{move.source.value}-to-{move.target.value}")
+@pytest.mark.parametrize("role", ROLES)
+def test_each_move_is_made_exactly_by_the_roles_the_table_allows(
+    client, role_users, work_order, technician, oil_part, move, role
+) -> None:
+    if move.target == Status.READY_FOR_PICKUP:
+        finish_bench_work(work_order, technician, oil_part)  # nothing missing: only the role decides
+    WorkOrder.objects.filter(pk=work_order.pk).update(status=move.source)
+    events = WorkOrderEvent.objects.filter(work_order=work_order).count()
+    if role != ANON:
+        client.force_login(role_users[role])
+    response = client.post(reverse("workshop:move", args=[work_order.number]), {"to": move.target.value})
+    work_order.refresh_from_db()
+    if role in set().union(*(MOVERS[permission] for permission in move.permissions)):
+        assert response.status_code == 302 and response["Location"] == work_order.get_absolute_url()
+        assert work_order.status == move.target
+        stamped = WorkOrderEvent.objects.filter(work_order=work_order).order_by("pk").last()
+        assert (stamped.from_status, stamped.to_status) == (move.source, move.target)
+        assert stamped.by == role_users[role]
+        return
+    assert work_order.status == move.source, "refused, but the status changed"
+    assert WorkOrderEvent.objects.filter(work_order=work_order).count() == events
+    if role == ANON:
+        assert response.status_code == 302 and response["Location"].startswith(reverse("accounts:sign-in"))
+    else:
+        assert response.status_code == 403
+        assert "Not for your role" in response.content.decode()
+
+
+# GET pages whose form posts back to the same address, an id in it. A GET page with an id that is
+# not listed here must refuse a POST (405): the guard test below holds that.
+FORM_PAGES = {
+    "customers:customer-edit",
+    "customers:unit-new",
+    "customers:unit-edit",
+    "workshop:check-in",
+    "stock:part-edit",
+    "stock:receive",
+    "stock:adjust",
+}
+SHOP_APPS = ("customers", "specs", "stock", "workshop", "documents", "owner")
+
+
+def _id_params(pattern: str) -> list[str]:
+    return [p for p in re.findall(r"<(?:\w+:)?(\w+)>", pattern) if p == "number" or p.endswith("_id")]
+
+
+def _posted_with_ids() -> list[tuple[str, str]]:
+    return [
+        (pattern, name)
+        for pattern, name in PATTERNS
+        if name in ACCESS and (ACCESS[name][0] == "post" or name in FORM_PAGES) and _id_params(pattern)
+    ]
+
+
+def _everything() -> dict[str, list[dict]]:
+    """Every row of the shop's own tables (their histories too), to see that nothing changed."""
+    return {
+        model._meta.label: list(model._default_manager.order_by("pk").values())
+        for label in SHOP_APPS
+        for model in apps.get_app_config(label).get_models()
+    }
+
+
+@pytest.fixture
+def other_job(shop, technician, front_desk, oil_part, service_types, air_fork_model):
+    """Another customer's job, on another spec sheet, finished on the bench: its ids are the
+    "another job's record" guesses."""
+    from shopdesk.customers.models import Customer, Unit
+    from shopdesk.specs.models import Chamber, UnitModel
+    from shopdesk.workshop.services import work_order_check_in
+
+    chambers = list(air_fork_model.chambers.all())
+    other_model = UnitModel.objects.get(pk=air_fork_model.pk)  # a copy: the fixture's stays as it is
+    other_model.pk = None
+    other_model.name = "Ridge 36 Other"
+    other_model.save()
+    for chamber in chambers:
+        chamber.pk, chamber.unit_model = None, other_model
+        chamber.save()
+    customer = Customer.objects.create(name="Bea Flint", phone="01632 960 777")
+    unit = Unit.objects.create(
+        customer=customer, unit_model=other_model, serial_number="RS36-0777", model_year=2024, travel_mm=150
+    )
+    job = work_order_check_in(
+        unit=unit, by=front_desk, service_types=service_types, complaint="Creaks at full travel."
+    )
+    finish_bench_work(job, technician, oil_part)
+    return {
+        "ids": {
+            "chamber_id": Chamber.objects.filter(unit_model=other_model).first().pk,
+            "check_id": job.final_checks.first().pk,
+            "record_id": job.oilrecord_set.first().pk,
+        },
+        "markers": [job.number, "Bea Flint", "RS36-0777", "Creaks at full travel", "Ridge 36 Other"],
+    }
+
+
+def _post_body(shop: dict[str, object], chamber_ids: list[object]) -> dict[str, object]:
+    """One body that every posted form would accept, so that a view that read the record from a
+    guessed id would change it and the test would see it."""
+    body: dict[str, object] = {
+        "to": Status.CANCELLED.value,
+        "note": "guessed",  # no "done": a final check posted is set not done
+        "reason": "guessed id",
+        "name": "Guessed Name",
+        "phone": "01632 960 000",
+        "quantity": "5",
+        "lot_code": "GUESS-1",
+        "part-part": shop["part_id"],
+        "part-quantity": "5",
+        "labour-minutes": "30",
+    }
+    for chamber in chamber_ids:
+        body |= {
+            f"oil-{chamber}-drained": "80",
+            f"oil-{chamber}-filled_ml": "80",
+            f"oil-{chamber}-condition": "dark",
+        }
+    return body
+
+
+@pytest.mark.django_db
+def test_guessed_ids_and_another_jobs_ids_change_nothing_when_posted(client, owner, shop, other_job) -> None:
+    client.force_login(owner)  # every permission: a 404 here is the record's absence, not the role
+    other_ids = other_job["ids"]
+    body = _post_body(shop, [shop["chamber_id"], other_ids["chamber_id"], "987654"])
+    before = _everything()
+    tried = set()
+    for pattern, name in _posted_with_ids():
+        params = re.findall(r"<(?:\w+:)?(\w+)>", pattern)
+        for param in _id_params(pattern):
+            if param == "number":
+                guesses = {"2099-9999": None, "OIL-5WT": None, str(shop["customer_id"]): None}
+            else:
+                guesses = {"987654": None}
+                if param in other_ids:
+                    guesses[str(other_ids[param])] = "another job's"
+            for guess, whose in guesses.items():
+                kwargs = {p: shop[p] for p in params} | {param: guess}
+                url = reverse(name, kwargs=kwargs)
+                response = client.post(url, body)
+                tried.add((name, param, whose))
+                assert response.status_code == 404, f"POST {url} ({name}) answered {response.status_code}"
+                page = response.content.decode()
+                assert "There is no such page or record" in page, url
+                if whose:
+                    shown = [marker for marker in other_job["markers"] if marker in page]
+                    assert not shown, f"POST {url} shows the other job's {shown}"
+                assert _everything() == before, f"POST {url} ({name}) changed something"
+    # The posts with an id of another job's record: a chamber, a final check and a bench record.
+    assert {(name, param) for name, param, whose in tried if whose} == {
+        ("workshop:oil", "chamber_id"),
+        ("workshop:check", "check_id"),
+        ("workshop:void", "record_id"),
+    }
+    assert {"workshop:move", "workshop:take", "owner:remind", "stock:adjust"} <= {
+        name for name, _, _ in tried
+    }
+    # The same post with the job's own final check does change it: the comparison sees a change.
+    own = reverse("workshop:check", kwargs={"number": shop["number"], "check_id": shop["check_id"]})
+    assert client.post(own, body).status_code == 302
+    assert _everything() != before
+
+
+@pytest.mark.django_db
+def test_a_get_page_with_an_id_and_no_form_refuses_a_post(client, owner, shop) -> None:
+    # Holds FORM_PAGES above complete: a page that takes a POST is tried by the test above.
+    client.force_login(owner)
+    taken = []
+    for pattern, name in PATTERNS:
+        if name not in ACCESS or ACCESS[name][0] != "get" or name in FORM_PAGES or not _id_params(pattern):
+            continue
+        url = _url(pattern, name, shop)
+        if client.post(url, {}).status_code != 405:
+            taken.append(f"{name} {url}")
+    assert not taken, "these take a POST: add them to FORM_PAGES in tests/security/test_matrix.py:\n" + (
+        "\n".join(taken)
+    )

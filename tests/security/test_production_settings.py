@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import json
 import os
 import secrets
 import subprocess
@@ -64,6 +65,70 @@ def test_production_settings_refuse_a_missing_or_weak_secret_key(tmp_path) -> No
     result = _deploy_check(tmp_path, SECRET_KEY="too-short")
     assert result.returncode != 0
     assert "SECRET_KEY must be a random string of at least 50 characters" in result.stderr
+
+
+def _bare_environment(tmp_path, **extra: str) -> dict[str, str]:
+    """The environment of a server started with none of the shop's settings: no DEBUG, no key."""
+    env = {
+        k: v
+        for k, v in os.environ.items()
+        if not k.startswith(("SHOPDESK_", "DJANGO_", "SECURE_")) and k not in {"DEBUG", "SECRET_KEY"}
+    }
+    env.update(DATABASE_URL=f"sqlite:///{tmp_path / 'bare.sqlite3'}", **extra)
+    return env
+
+
+NO_KEY = "SECRET_KEY is not set. DEBUG is off (it is unless set)"
+
+
+def test_without_debug_or_a_secret_key_the_shop_will_not_start(tmp_path) -> None:
+    run = {"cwd": ROOT, "capture_output": True, "text": True, "timeout": 120, "check": False}
+    env = _bare_environment(tmp_path)
+    # A command: one line that names SECRET_KEY and says what to do, no traceback.
+    command = subprocess.run([sys.executable, "manage.py", "migrate", "--noinput"], env=env, **run)
+    assert command.returncode == 1
+    assert command.stderr.startswith(f"ShopDesk cannot start: {NO_KEY}")
+    assert "random string of at least 50 characters, or DEBUG=true" in command.stderr
+    assert "Traceback" not in command.stderr + command.stdout
+    assert not (tmp_path / "bare.sqlite3").exists()  # stopped before touching the database
+    # gunicorn: its worker fails to boot and the server stops before answering anything, so no
+    # page (and no debug page) is ever served; the reason is in the server's own log.
+    gunicorn = [sys.executable, "-m", "gunicorn", "shopdesk.wsgi", "--bind=127.0.0.1:0", "--workers=1"]
+    server = subprocess.run(
+        [*gunicorn, "--no-control-socket"],  # no control socket left in the home folder
+        env=env,
+        **run,
+    )
+    assert server.returncode != 0
+    assert NO_KEY in server.stderr and "Worker failed to boot" in server.stderr
+
+
+FAIL_ONCE = """
+import json, django
+django.setup()
+from django.conf import settings
+from django.test import Client
+# The database has no tables: signing in fails inside the app, as a real fault would.
+client = Client(raise_request_exception=False)
+response = client.post("/accounts/sign-in/", {"username": "owner", "password": "x"}, secure=True)
+print(json.dumps({"debug": settings.DEBUG, "status": response.status_code, "page": response.content.decode()}))
+"""
+
+
+def test_a_server_started_with_only_a_secret_key_shows_no_traceback(tmp_path) -> None:
+    env = _bare_environment(tmp_path, SECRET_KEY=secrets.token_urlsafe(50), ALLOWED_HOSTS="testserver")
+    env["DJANGO_SETTINGS_MODULE"] = "shopdesk.settings"
+    result = subprocess.run(
+        [sys.executable, "-c", FAIL_ONCE], cwd=ROOT, env=env, capture_output=True, text=True, timeout=120
+    )
+    assert result.returncode == 0, result.stderr
+    answer = json.loads(result.stdout)
+    assert answer["debug"] is False
+    assert answer["status"] == 500
+    assert "Something went wrong" in answer["page"]
+    for detail in ("Traceback", "OperationalError", "no such table", "settings.py", "DEBUG = True"):
+        assert detail not in answer["page"], detail
+    assert "no such table" in result.stderr  # the details went to the log
 
 
 @pytest.mark.parametrize(

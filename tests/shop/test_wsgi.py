@@ -24,7 +24,9 @@ print(json.dumps({
 def test_the_application_loads_the_views_and_weasyprint_then_freezes_them(tmp_path) -> None:
     env = {k: v for k, v in os.environ.items() if not k.startswith("SHOPDESK_")}
     env.update(
-        DATABASE_URL=f"sqlite:///{tmp_path / 'wsgi.sqlite3'}", DJANGO_SETTINGS_MODULE="shopdesk.settings"
+        DATABASE_URL=f"sqlite:///{tmp_path / 'wsgi.sqlite3'}",
+        DJANGO_SETTINGS_MODULE="shopdesk.settings",
+        DEBUG="true",
     )
     result = subprocess.run(
         [sys.executable, "-c", PROBE], cwd=ROOT, env=env, capture_output=True, text=True, timeout=120
