@@ -415,6 +415,7 @@ def main() -> None:
             f"--workers={args.workers}",
             f"--bind={HOST}:{port}",
             "--max-requests=2000",
+            "--no-control-socket",  # gunicorn 27 would leave a control socket in the home folder
             "--max-requests-jitter=200",
             "--access-logfile=-" if os.environ.get("LOAD_ACCESS_LOG") else "--access-logfile=/dev/null",
         ],
