@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import gc
+import traceback
 from collections.abc import Iterator
 from contextlib import contextmanager
 
@@ -16,6 +18,33 @@ def read_snapshot(using: str = DEFAULT_DB_ALIAS) -> Iterator[None]:
     reading the jobs and reading their services would leave services whose job is not in the copy
     (a dumpdata copy would then refuse to load).
     """
+    try:
+        with _snapshot(using):
+            yield
+    except BaseException as error:
+        _close_abandoned_cursors(error)
+        raise
+
+
+def _close_abandoned_cursors(error: BaseException) -> None:
+    """Close now the cursors that a reading stopped by ``error`` left open.
+
+    On PostgreSQL Django reads ``iterator()`` through a server-side cursor, closed when the
+    iterator ends. An error raised halfway (a full disk under a backup or the export) leaves the
+    iterator suspended in the frames of the error's traceback, to be finalised whenever the
+    garbage collector runs: in the middle of another query on the same connection, closing the
+    cursor would wait for the connection that query holds, and the process would hang (a CI run
+    did, in the flush after a failed backup). Here no query is running: the frames the error
+    left are cleared (their iterators end and close their cursors) and anything left in a
+    reference cycle is collected. The error keeps its message and where it was raised.
+    """
+    traceback.clear_frames(error.__traceback__)
+    gc.collect()
+
+
+@contextmanager
+def _snapshot(using: str) -> Iterator[None]:
+    """One transaction of the database's for the reading (see ``read_snapshot``)."""
     connection = connections[using]
     if connection.in_atomic_block:
         # The caller's own transaction (a test's, for one): its reads are already the caller's.
