@@ -5,8 +5,19 @@ from typing import Any
 from django import forms
 
 from shopdesk.customers.models import Customer, SetupFields, Unit
+from shopdesk.customers.selectors import SEARCH_MAX_LENGTH
 from shopdesk.shop.quantities import LENGTH, PRESSURE, SPRING_RATE, QuantityField, format_quantity
 from shopdesk.specs.models import UnitModel
+
+
+class SearchForm(forms.Form):
+    """What the front desk typed in the search box; a character no record can hold is refused."""
+
+    q = forms.CharField(required=False, max_length=SEARCH_MAX_LENGTH, strip=True)
+
+    def query(self) -> str | None:
+        """The text to search for, or None where it was refused (the form's errors say why)."""
+        return self.cleaned_data["q"] if self.is_valid() else None
 
 
 class CustomerForm(forms.ModelForm):

@@ -9,6 +9,7 @@ from django.db.models import Q, QuerySet
 from shopdesk.customers.models import Customer, Unit, phone_digits
 
 SEARCH_LIMIT = 15
+SEARCH_MAX_LENGTH = 100
 
 
 @dataclass(frozen=True)
@@ -28,7 +29,7 @@ def search(query: str, *, limit: int = SEARCH_LIMIT) -> SearchResults:
     Two queries whatever the size of the shop: each is limited, and a unit's customer and
     model come with it.
     """
-    text = " ".join(query.split())[:100]
+    text = " ".join(query.split())[:SEARCH_MAX_LENGTH]
     if len(text) < 2:
         return SearchResults(query=text, customers=[], units=[])
     digits = phone_digits(text)

@@ -10,7 +10,7 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_GET, require_http_methods
 
 from shopdesk.customers import selectors, services
-from shopdesk.customers.forms import CustomerForm, SetupForm, UnitForm
+from shopdesk.customers.forms import CustomerForm, SearchForm, SetupForm, UnitForm
 from shopdesk.customers.models import Customer, Unit
 from shopdesk.specs.models import UnitModel
 from shopdesk.workshop.models import WorkOrder
@@ -20,14 +20,17 @@ from shopdesk.workshop.selectors import work_order_from_scan
 @require_GET
 @permission_required("customers.view_customer", raise_exception=True)
 def search(request: HttpRequest) -> HttpResponse:
-    query = request.GET.get("q", "")
+    form = SearchForm(request.GET)
+    query = form.query()
+    template = "customers/search.html#results" if request.htmx else "customers/search.html"
+    if query is None:
+        return render(request, template, {"form": form, "results": None, "scanned": None})
     # A scanner types a job card's QR address or a job number, then Enter: open that job.
     scanned = work_order_from_scan(query)
     if scanned is not None and not request.htmx:
         return redirect(scanned)
     results = selectors.search(query)
-    template = "customers/search.html#results" if request.htmx else "customers/search.html"
-    return render(request, template, {"results": results, "scanned": scanned})
+    return render(request, template, {"form": form, "results": results, "scanned": scanned})
 
 
 @require_http_methods(["GET", "POST"])

@@ -213,6 +213,7 @@ def test_hostile_values_never_break_a_form_or_what_is_saved(
 # value makes no sense, and nothing is saved.
 GET_PAGES = [
     ("customers:search", "front_desk"),
+    ("stock:list", "front_desk"),
     ("calculators:index", "technician"),
     ("owner:dashboard", "owner"),
     ("owner:numbers", "owner"),
