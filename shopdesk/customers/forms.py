@@ -13,7 +13,15 @@ from shopdesk.specs.models import UnitModel
 class SearchForm(forms.Form):
     """What the front desk typed in the search box; a character no record can hold is refused."""
 
-    q = forms.CharField(required=False, max_length=SEARCH_MAX_LENGTH, strip=True)
+    q = forms.CharField(
+        required=False,
+        max_length=SEARCH_MAX_LENGTH,
+        strip=True,
+        error_messages={
+            "max_length": "Search with at most %(limit_value)d characters (this has %(show_value)d).",
+            "null_characters_not_allowed": "The search holds a control character (NUL): type it again.",
+        },
+    )
 
     def query(self) -> str | None:
         """The text to search for, or None where it was refused (the form's errors say why)."""
