@@ -7,6 +7,7 @@ editor unsaved (with htmx, in place), so nothing typed is lost on the way.
 
 from __future__ import annotations
 
+import re
 from collections.abc import Mapping
 from types import SimpleNamespace
 from typing import Any
@@ -17,10 +18,11 @@ from django.forms import formset_factory
 from shopdesk.calc import CalcInputError
 from shopdesk.calc.plates import LARGEST_SHIM, THICKEST_SHIM, THINNEST_SHIM
 from shopdesk.calc.shims import MOST_LINES, MOST_SHIMS_PER_LINE
+from shopdesk.shop.ids import RecordChoiceField, id_from
 from shopdesk.shop.quantities import FORCE, PRESSURE, QuantityField
 from shopdesk.specs.geometry import shim_stack_for
 from shopdesk.specs.models import StackFields, StackPreset, UnitModel
-from shopdesk.workshop.bench_forms import VersionedForm
+from shopdesk.workshop.bench_forms import STALE_FORM, VersionedForm
 from shopdesk.workshop.models import ShimStackRecord
 
 MM = {"inputmode": "decimal", "autocomplete": "off"}
@@ -144,6 +146,7 @@ class StackEditor:
         self.form = StackForm(data, prefix=self.prefix, initial=initial)
         self.rows = ShimRowFormSet(data, prefix=f"{self.prefix}-rows", initial=rows or [{}])
         self.values: dict[str, Any] | None = None
+        self.problems: list[str] = []  # what was wrong with a posted edit, shown above the rows
 
     @property
     def label(self) -> str:
@@ -228,28 +231,80 @@ class StackEditor:
     def edited(
         cls, data: Mapping[str, Any], *, stage: str, unit_model: UnitModel, valve: str, edit: str
     ) -> StackEditor:
-        """The posted editor with one row added, removed or moved; nothing is saved or checked."""
+        """The posted editor with one row added, removed or moved (``edit`` as ``StackActionForm``
+        cleans it; "" for none); nothing is saved or checked. What cannot be done is said above
+        the rows, never done quietly in part."""
         prefix = f"stack-{stage}"
-        try:
-            total = max(0, min(int(data.get(f"{prefix}-rows-TOTAL_FORMS", 0)), MOST_LINES))
-        except (TypeError, ValueError):
-            total = 0
+        problems = []
+        raw_total = data.get(f"{prefix}-rows-TOTAL_FORMS", "")
+        total = id_from(raw_total)
+        if total is None or total > MOST_LINES:
+            # Mangled: keep every row that was posted, and say so.
+            problems.append(ROWS_DAMAGED)
+            total = sum(
+                any(f"{prefix}-rows-{index}-{name}" in data for name in ROW_FIELDS)
+                for index in range(MOST_LINES)
+            )
         rows = [
             {name: data.get(f"{prefix}-rows-{index}-{name}", "") for name in ROW_FIELDS}
             for index in range(total)
         ]
         action, _, where = edit.partition("-")
-        index = int(where) if where.isdigit() else -1
-        if action == "add" and len(rows) < MOST_LINES:
-            rows.append({"od": "", "thickness": "", "count": "1"})
-        elif action == "remove" and 0 <= index < len(rows) and len(rows) > 1:
-            rows.pop(index)
-        elif action == "up" and 0 < index < len(rows):
+        index = int(where) if where else -1
+        if action == "add":
+            if len(rows) < MOST_LINES:
+                rows.append({"od": "", "thickness": "", "count": "1"})
+            else:
+                problems.append(f"A stack has at most {MOST_LINES} rows.")
+        elif action in {"remove", "up", "down"} and not 0 <= index < len(rows):
+            problems.append(
+                "That row is no longer in the stack: nothing moved. Check the rows and try again."
+            )
+        elif action == "remove":
+            if len(rows) > 1:
+                rows.pop(index)
+            else:
+                problems.append("A stack keeps at least one row.")
+        elif action == "up" and index > 0:
             rows[index - 1], rows[index] = rows[index], rows[index - 1]
-        elif action == "down" and 0 <= index < len(rows) - 1:
+        elif action == "down" and index < len(rows) - 1:
             rows[index], rows[index + 1] = rows[index + 1], rows[index]
         initial = {name: data.get(f"{prefix}-{name}", "") for name in StackForm.base_fields}
-        return cls(stage=stage, unit_model=unit_model, valve=valve, initial=initial, rows=rows or [{}])
+        if initial["version"] and id_from(initial["version"]) is None:
+            initial.pop("version")
+            problems.append(STALE_FORM)
+        editor = cls(stage=stage, unit_model=unit_model, valve=valve, initial=initial, rows=rows or [{}])
+        editor.problems = problems
+        return editor
+
+
+ROWS_DAMAGED = "The rows came back damaged (an old or changed page): check them before saving."
+ROW_EDIT = re.compile(f"(up|down|remove)-([0-9]{{1,{len(str(MOST_LINES - 1))}}})")
+
+
+class StackActionForm(forms.Form):
+    """Which of the editor's buttons was pressed: save, add a row, move or remove row N, start
+    from the library, keep in the library."""
+
+    action = forms.Field(required=False)  # checked against the buttons only, one message for all
+
+    ACTIONS = ("save", "add", "load", "keep")
+
+    def clean_action(self) -> str:
+        action = self.cleaned_data["action"] or "save"  # Enter in a box, or a page without script
+        match = ROW_EDIT.fullmatch(action) if isinstance(action, str) else None
+        if action in self.ACTIONS or (match and int(match.group(2)) < MOST_LINES):
+            return action
+        raise forms.ValidationError(
+            "That button is not on this page (an old or changed page): nothing was done. Check the stack "
+            "and press the button again."
+        )
+
+    def is_row_edit(self) -> bool:
+        return (
+            self.cleaned_data["action"] == "add"
+            or ROW_EDIT.fullmatch(self.cleaned_data["action"]) is not None
+        )
 
 
 class PresetForm(forms.Form):
@@ -259,7 +314,7 @@ class PresetForm(forms.Form):
 
 
 class FromLibraryForm(forms.Form):
-    preset = forms.ModelChoiceField(queryset=StackPreset.objects.none(), label="Start from the library")
+    preset = RecordChoiceField(queryset=StackPreset.objects.none(), label="Start from the library")
 
     def __init__(self, *args: Any, unit_model: UnitModel, valve: str, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)
