@@ -288,7 +288,9 @@ def _plots(panel: ValvePanel) -> tuple[str, str]:
 # --- Views --------------------------------------------------------------------------------------
 
 
-def _render_panel(request: HttpRequest, work_order: WorkOrder, panel: ValvePanel) -> HttpResponse:
+def _render_panel(
+    request: HttpRequest, work_order: WorkOrder, panel: ValvePanel, *, void_refused: object = None
+) -> HttpResponse:
     template = "workshop/valve.html#panel" if request.htmx else "workshop/valve.html"
     context = {
         "summaries": stack_summaries(work_order) if request.htmx else None,
@@ -296,8 +298,16 @@ def _render_panel(request: HttpRequest, work_order: WorkOrder, panel: ValvePanel
         "panel": panel,
         "can_record": work_order.status in bench.RECORDING_STATUSES,
         "compare_lift_mm": COMPARE_LIFT_MM,
+        "void_refused": void_refused,
     }
     return render(request, template, context)
+
+
+def render_valve_void_refused(
+    request: HttpRequest, work_order: WorkOrder, record: ShimStackRecord, refusal: object
+) -> HttpResponse:
+    """The valve's page again after a refused void of one of its stacks, the refusal at its form."""
+    return _render_panel(request, work_order, valve_panel(work_order, record.valve), void_refused=refusal)
 
 
 @require_GET

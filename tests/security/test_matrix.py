@@ -59,7 +59,7 @@ ACCESS: dict[str, tuple[str, set[str], int]] = {
     "workshop:valve": ("get", STAFF, 200),
     "workshop:stack": ("post", BENCH, 200),
     "workshop:stack-library": ("get", STAFF, 200),
-    "workshop:void": ("post", BENCH, 302),
+    "workshop:void": ("post", BENCH, 200),  # no reason given: the page again, the refusal at the form
     "workshop:payment": ("post", COUNTER, 200),  # the empty form again, its errors at the fields
     "workshop:payment-void": ("post", {OWNER}, 200),  # a payment taken in error: the owner's
     "stock:list": ("get", STAFF, 200),
