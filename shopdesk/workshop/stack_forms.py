@@ -14,11 +14,13 @@ from typing import Any
 
 from django import forms
 from django.forms import formset_factory
+from django.forms.formsets import BaseFormSet, ManagementForm
+from django.utils.functional import cached_property
 
 from shopdesk.calc import CalcInputError
 from shopdesk.calc.plates import LARGEST_SHIM, THICKEST_SHIM, THINNEST_SHIM
 from shopdesk.calc.shims import MOST_LINES, MOST_SHIMS_PER_LINE
-from shopdesk.shop.ids import RecordChoiceField, id_from
+from shopdesk.shop.ids import IdField, RecordChoiceField, id_from
 from shopdesk.shop.quantities import FORCE, PRESSURE, QuantityField
 from shopdesk.specs.geometry import shim_stack_for
 from shopdesk.specs.models import StackFields, StackPreset, UnitModel
@@ -45,8 +47,42 @@ class ShimRowForm(forms.Form):
         return thickness
 
 
+ROWS_DAMAGED = "The rows came back damaged (an old or changed page): check them before saving."
+
+
+class _RowCounts(ManagementForm):
+    """The formset's row counts, ASCII digits as every number the page posts (IntegerField read
+    "٤" and "+4")."""
+
+    TOTAL_FORMS = IdField(widget=forms.HiddenInput)
+    INITIAL_FORMS = IdField(widget=forms.HiddenInput)
+
+
+class _ShimRows(BaseFormSet):
+    default_error_messages = {**BaseFormSet.default_error_messages, "missing_management_form": ROWS_DAMAGED}
+
+    @cached_property
+    def management_form(self) -> ManagementForm:
+        if not self.is_bound:
+            return BaseFormSet.management_form.func(self)
+        form = _RowCounts(self.data, auto_id=self.auto_id, prefix=self.prefix, renderer=self.renderer)
+        form.full_clean()
+        return form
+
+    def full_clean(self) -> None:
+        super().full_clean()
+        # Django says so, then replaces it with "at least 1 form" when it counts no rows.
+        if (
+            self.is_bound
+            and not self.management_form.is_valid()
+            and ROWS_DAMAGED not in self._non_form_errors
+        ):
+            self._non_form_errors.insert(0, ROWS_DAMAGED)
+
+
 ShimRowFormSet = formset_factory(
     ShimRowForm,
+    formset=_ShimRows,
     extra=0,
     min_num=1,
     validate_min=True,
@@ -278,7 +314,6 @@ class StackEditor:
         return editor
 
 
-ROWS_DAMAGED = "The rows came back damaged (an old or changed page): check them before saving."
 ROW_EDIT = re.compile(f"(up|down|remove)-([0-9]{{1,{len(str(MOST_LINES - 1))}}})")
 
 

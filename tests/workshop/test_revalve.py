@@ -301,3 +301,16 @@ def test_keeping_a_stack_under_a_bad_name_is_refused_at_the_name(client, technic
     assert response.status_code == 200
     assert response.context["panel"].keep["before"].has_error("name")
     assert not StackPreset.objects.exists()
+
+
+@pytest.mark.parametrize("total", ["٤", "+4", "", "4.0"])
+def test_saving_with_a_damaged_row_count_is_refused_above_the_rows(
+    client, technician, on_bench, total
+) -> None:
+    # Django's formset read its counts with IntegerField: "٤" and "+4" were taken as 4.
+    client.force_login(technician)
+    data = _post(BEFORE) | {"stack-before-rows-TOTAL_FORMS": total}
+    response = client.post(_url(on_bench), data)
+    assert response.status_code == 200
+    assert "The rows came back damaged" in response.content.decode()
+    assert not ShimStackRecord.objects.exists()
