@@ -354,6 +354,24 @@ def test_the_judge_wants_words_in_the_form_posted() -> None:
     assert names_its_reason('<ul class="messages"><li class="error">Not voided.</li></ul>', "/a/", False)
 
 
+# The quote is posted by htmx from the check-in form's ticks (hx-post on their box, not a form of
+# its own, so the guards below do not see it): hostile ticks are named in the quote, never a 500.
+@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(ticks=st.lists(HOSTILE, max_size=4))
+def test_hostile_ticks_never_break_the_quote(client, shop, role_users, ticks) -> None:
+    from shopdesk.specs.models import ServiceType
+
+    client.force_login(role_users["front_desk"])
+    response = client.post(
+        reverse("workshop:quote"), {"job-service_types": ticks}, headers={"HX-Request": "true"}
+    )
+    assert response.status_code == 200
+    page = response.content.decode()
+    real = {str(pk) for pk in ServiceType.objects.filter(active=True).values_list("pk", flat=True)}
+    if any(tick not in real for tick in ticks):
+        assert names_its_reason(page, "", False), f"the quote took {ticks!r} without a word"
+
+
 # The search and filter forms (GET): whatever is typed, the page answers, with a message where a
 # value makes no sense, and nothing is saved.
 GET_PAGES = [
