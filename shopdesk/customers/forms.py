@@ -6,6 +6,7 @@ from django import forms
 
 from shopdesk.customers.models import Customer, SetupFields, Unit
 from shopdesk.customers.selectors import SEARCH_MAX_LENGTH
+from shopdesk.shop.ids import RecordChoiceField
 from shopdesk.shop.quantities import LENGTH, PRESSURE, SPRING_RATE, QuantityField, format_quantity
 from shopdesk.specs.models import UnitModel
 
@@ -125,6 +126,7 @@ class UnitForm(forms.ModelForm):
             "notes": forms.Textarea(attrs={"rows": 3}),
         }
         labels = {"unit_model": "Model (spec sheet)"}
+        field_classes = {"unit_model": RecordChoiceField}
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)

@@ -10,6 +10,7 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_GET, require_http_methods
 
 from shopdesk.documents import selectors, services
+from shopdesk.documents.forms import BatchForm
 from shopdesk.documents.models import PrintBatch
 from shopdesk.documents.renderer import PDF, Document, render_document
 from shopdesk.workshop.models import WorkOrder
@@ -58,16 +59,20 @@ def service_report(request: HttpRequest, number: str) -> HttpResponse:
 def batch_new(request: HttpRequest) -> HttpResponse:
     """Pick the jobs: every unit checked in today, or the ticked ones; then render them as one PDF."""
     today = selectors.checked_in_today()
-    error = ""
-    picked: list[str] = []
-    if request.method == "POST":
-        picked = request.POST.getlist("numbers") if request.POST.get("which") == "picked" else today
+    form = BatchForm(request.POST if request.method == "POST" else None)
+    # The ticks come back as they were posted, even those refused (only matching jobs are shown).
+    picked = request.POST.getlist("numbers") if request.method == "POST" else []
+    if request.method == "POST" and form.is_valid():
+        which = form.cleaned_data["which"]
+        numbers = form.cleaned_data["numbers"] if which == "picked" else today
         try:
-            batch = services.print_batch_start(numbers=picked, by=request.user, base_url=_base_url(request))
+            batch = services.print_batch_start(numbers=numbers, by=request.user, base_url=_base_url(request))
         except ValidationError as refusal:
-            error = " ".join(refusal.messages)
+            # At the button pressed: today's, or the ticked jobs'.
+            form.add_error("numbers" if which == "picked" else "which", refusal.messages)
         else:
             return redirect("documents:batch", batch_id=batch.pk)
+    refused = form.is_bound and bool(form.errors)
     return render(
         request,
         "documents/batch_new.html",
@@ -75,10 +80,10 @@ def batch_new(request: HttpRequest) -> HttpResponse:
             "today": today,
             "candidates": selectors.batch_candidates(),
             "picked": set(picked),
-            "error": error,
+            "form": form,
             "recent": PrintBatch.objects.defer("pdf").select_related("created_by")[:5],
         },
-        status=400 if error else 200,
+        status=400 if refused else 200,
     )
 
 

@@ -9,6 +9,7 @@ from django import forms
 from shopdesk.owner.models import MessageWording
 from shopdesk.owner.selectors import DueFilters, cursor_parse
 from shopdesk.owner.wording import PLACEHOLDERS, wording_check
+from shopdesk.shop.ids import RecordChoiceField
 from shopdesk.specs.models import ServiceType, UnitModel
 
 LONGEST_NOT_CONTACTED_DAYS = 3650
@@ -21,10 +22,10 @@ class DueFilterForm(forms.Form):
     CONSENT = (("", "Everyone"), ("yes", "Agreed to reminders"), ("no", "Not agreed"))
 
     list = forms.ChoiceField(choices=LISTS, required=False, widget=forms.HiddenInput)
-    service_type = forms.ModelChoiceField(
+    service_type = RecordChoiceField(
         queryset=ServiceType.objects.none(), required=False, empty_label="Every service", label="Service"
     )
-    unit_model = forms.ModelChoiceField(
+    unit_model = RecordChoiceField(
         queryset=UnitModel.objects.none(), required=False, empty_label="Every model", label="Unit model"
     )
     consent = forms.ChoiceField(choices=CONSENT, required=False, label="Reminders")

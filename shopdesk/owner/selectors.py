@@ -12,6 +12,7 @@ from shopdesk.calc.schedule import DueStatus
 from shopdesk.customers.models import Unit
 from shopdesk.owner import wording
 from shopdesk.owner.models import DueService, MessageWording, Reminder
+from shopdesk.shop.ids import id_from
 from shopdesk.stock.models import Part
 from shopdesk.stock.selectors import parts_with_on_hand
 from shopdesk.workshop.models import OPEN_STATUSES, Status, WorkOrder
@@ -98,8 +99,9 @@ class DuePage:
 def cursor_parse(raw: str) -> tuple[datetime.date, int] | None:
     """A page cursor ``"2026-03-14.1234"``, or None when it is not one."""
     day, _, ident = raw.partition(".")
+    number = id_from(ident)  # ASCII digits: int() took "١٢", "+5", "1_0" and any length
     try:
-        return datetime.date.fromisoformat(day), int(ident)
+        return (datetime.date.fromisoformat(day), number) if number is not None else None
     except ValueError:
         return None
 

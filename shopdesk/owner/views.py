@@ -8,7 +8,6 @@ from django.contrib.auth.decorators import login_not_required, permission_requir
 from django.core import signing
 from django.http import HttpRequest, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
-from django.utils.http import url_has_allowed_host_and_scheme
 from django.views.decorators.http import require_GET, require_http_methods, require_POST
 
 from shopdesk.calc.schedule import DueStatus
@@ -17,6 +16,7 @@ from shopdesk.customers.services import customer_consent_set
 from shopdesk.owner import selectors, services
 from shopdesk.owner.forms import DueFilterForm, WordingForm
 from shopdesk.owner.models import DueService
+from shopdesk.shop.redirects import safe_next
 
 
 @require_GET
@@ -70,10 +70,7 @@ def remind(request: HttpRequest, due_id: int) -> HttpResponse:
                 request,
                 f"Reminder sent to {due.unit.customer.name} ({reminder.email}) for {due.service_type}.",
             )
-    back = request.POST.get("next", "")
-    if url_has_allowed_host_and_scheme(back, allowed_hosts={request.get_host()}):
-        return redirect(back)
-    return redirect("owner:dashboard")
+    return redirect(safe_next(request, request.POST.get("next"), fallback="owner:dashboard"))
 
 
 @require_http_methods(["GET", "POST"])

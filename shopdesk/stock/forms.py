@@ -15,6 +15,7 @@ from django import forms
 from django.conf import settings
 
 from shopdesk.calc import CalcInputError, parse_quantity
+from shopdesk.shop.ids import RecordChoiceField
 from shopdesk.stock.models import Part
 
 QUANTITY_TEXT_LENGTH = 40
@@ -105,6 +106,7 @@ class PartForm(forms.ModelForm):
             "active",
         ]
         labels = {"oil": "Spec-sheet oil"}
+        field_classes = {"oil": RecordChoiceField}
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)

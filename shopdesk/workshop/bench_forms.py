@@ -9,6 +9,7 @@ from django.conf import settings
 
 from shopdesk.calc import Q_, CalcInputError, parse_quantity
 from shopdesk.calc import oil as oil_calc
+from shopdesk.shop.ids import IdField, RecordChoiceField
 from shopdesk.shop.quantities import LENGTH, PRESSURE, SPRING_RATE, VOLUME, QuantityField, format_quantity
 from shopdesk.specs.models import Chamber, UnitModel
 from shopdesk.stock.models import Part, StockLot
@@ -22,7 +23,7 @@ STALE_FORM = "This form was changed or is from an old page: reload the job page 
 
 
 class VersionedForm(forms.Form):
-    version = forms.IntegerField(
+    version = IdField(
         widget=forms.HiddenInput,
         required=False,
         min_value=1,
@@ -43,8 +44,8 @@ class OilRecordForm(VersionedForm):
     )
     condition = forms.ChoiceField(choices=[("", "—"), *OilRecord.Condition.choices], required=False)
     filled_ml = QuantityField(kind=VOLUME, required=False, maximum=1000, label="Filled")
-    oil_part = forms.ModelChoiceField(queryset=Part.objects.none(), required=False, label="Oil from stock")
-    oil_lot = forms.ModelChoiceField(queryset=StockLot.objects.none(), required=False, label="Lot")
+    oil_part = RecordChoiceField(queryset=Part.objects.none(), required=False, label="Oil from stock")
+    oil_lot = RecordChoiceField(queryset=StockLot.objects.none(), required=False, label="Lot")
     fill_confirmed = forms.BooleanField(required=False, label="The fill differs from the spec on purpose")
     notes = forms.CharField(required=False, max_length=300)
 
@@ -248,9 +249,9 @@ class SpringRecordForm(VersionedForm):
 
 
 class PartUsedForm(forms.Form):
-    part = forms.ModelChoiceField(queryset=Part.objects.none(), label="Part from stock")
+    part = RecordChoiceField(queryset=Part.objects.none(), label="Part from stock")
     quantity = forms.DecimalField(min_value=0.01, max_value=1000, decimal_places=2, initial=1)
-    lot = forms.ModelChoiceField(queryset=StockLot.objects.none(), required=False)
+    lot = RecordChoiceField(queryset=StockLot.objects.none(), required=False)
     serial_number = forms.CharField(required=False, max_length=60, label="Serial (if it has one)")
     override_reason = forms.CharField(
         required=False, max_length=200, label="Reason to use more than is on hand (owner only)"

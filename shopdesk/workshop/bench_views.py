@@ -73,6 +73,22 @@ class SpringRow:
     conflict: str = ""
 
 
+@dataclass(frozen=True)
+class VoidRefusal:
+    """A void that was refused: the posted form, back at the record's void button with its reason
+    kept and the refusal in it. Where the page shows no void button for the record (already void;
+    a part or labour on a closed job), the refusal is shown above the records instead."""
+
+    kind: str
+    record_id: int
+    form: VoidForm
+    shown: bool = True
+
+    @property
+    def errors(self) -> list[str]:
+        return [error for errors in self.form.errors.values() for error in errors]
+
+
 @dataclass
 class Overrides:
     """Forms bound to what was just posted, shown in place of the fresh ones."""
@@ -83,6 +99,7 @@ class Overrides:
     labour: LabourForm | None = None
     payment: PaymentForm | None = None
     payment_void: tuple[int, PaymentVoidForm] | None = None
+    void: VoidRefusal | None = None
 
 
 def _job(number: str) -> WorkOrder:
@@ -212,6 +229,7 @@ def job_context(work_order: WorkOrder, user: Any, overrides: Overrides | None = 
             )
             for entry in payment.payments
         ],
+        "void_refused": overrides.void,
         "torque_values": list(unit_model.torque_values.all()),
         "can_record": work_order.status in services.bench.RECORDING_STATUSES,
         "shop_temperature_c": shop_temperature().magnitude,
@@ -385,20 +403,28 @@ def record_void(request: HttpRequest, number: str, kind: str, record_id: int) ->
     work_order = _job(number)
     record = get_object_or_404(RECORD_MODELS[kind], pk=record_id, work_order=work_order)
     form = VoidForm(request.POST)
-    if not form.is_valid():
-        messages.error(request, "Say why the record is wrong before voiding it.")
-    else:
+    if form.is_valid():
         try:
             services.record_void(record=record, reason=form.cleaned_data["reason"], by=request.user)
         except ValidationError as error:
-            messages.error(request, " ".join(error.messages))
+            _add_errors(form, error)
         else:
             messages.success(request, "Record voided; it stays on the job, marked void.")
+            if kind == "stack":
+                return redirect("workshop:valve", work_order.number, record.valve)
+            if request.htmx:
+                return _render_job(request, work_order)
+            return redirect(work_order)
+    # Refused: the page again (200), the reason typed kept and the refusal at the void form.
+    shown = not record.is_void and (
+        kind in {"oil", "spring"} or work_order.status in services.bench.RECORDING_STATUSES
+    )
+    refusal = VoidRefusal(kind=kind, record_id=record.pk, form=form, shown=shown)
     if kind == "stack":
-        return redirect("workshop:valve", work_order.number, record.valve)
-    if request.htmx:
-        return _render_job(request, work_order)
-    return redirect(work_order)
+        from shopdesk.workshop.revalve_views import render_valve_void_refused
+
+        return render_valve_void_refused(request, work_order, record, refusal)
+    return _render_job(request, work_order, Overrides(void=refusal))
 
 
 def _add_errors(form: Any, error: ValidationError) -> None:

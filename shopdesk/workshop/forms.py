@@ -7,13 +7,14 @@ from typing import Any
 from django import forms
 from django.utils import timezone
 
+from shopdesk.shop.ids import RecordsChoiceField
 from shopdesk.specs.models import ServiceType
 from shopdesk.stock.forms import MoneyField
 from shopdesk.workshop.models import Payment
 
 
 class CheckInForm(forms.Form):
-    service_types = forms.ModelMultipleChoiceField(
+    service_types = RecordsChoiceField(
         queryset=ServiceType.objects.none(),
         widget=forms.CheckboxSelectMultiple,
         label="Services asked for",

@@ -25,12 +25,13 @@ from shopdesk.calc import damper as damper_calc
 from shopdesk.calc import shims as shim_calc
 from shopdesk.specs.geometry import oil_for, piston_for, shim_stack_for
 from shopdesk.specs.models import Chamber, Oil, StackPreset, UnitModel, Valve
+from shopdesk.workshop.bench_forms import STALE_FORM
 from shopdesk.workshop.bench_views import _add_errors, _job
 from shopdesk.workshop.models import OilRecord, ShimStackRecord, WorkOrder
 from shopdesk.workshop.selectors import COMPARE_LIFT_MM, stack_comparison, stack_summaries
 from shopdesk.workshop.services import RecordConflict, bench
 from shopdesk.workshop.services.revalve import shim_stack_save, stack_preset_save
-from shopdesk.workshop.stack_forms import FromLibraryForm, PresetForm, StackEditor
+from shopdesk.workshop.stack_forms import FromLibraryForm, PresetForm, StackActionForm, StackEditor
 
 STAGES = tuple(ShimStackRecord.Stage.values)
 # Shaft speeds of the damping estimate: 0–2.5 m/s covers a bicycle damper's working range
@@ -287,7 +288,9 @@ def _plots(panel: ValvePanel) -> tuple[str, str]:
 # --- Views --------------------------------------------------------------------------------------
 
 
-def _render_panel(request: HttpRequest, work_order: WorkOrder, panel: ValvePanel) -> HttpResponse:
+def _render_panel(
+    request: HttpRequest, work_order: WorkOrder, panel: ValvePanel, *, void_refused: object = None
+) -> HttpResponse:
     template = "workshop/valve.html#panel" if request.htmx else "workshop/valve.html"
     context = {
         "summaries": stack_summaries(work_order) if request.htmx else None,
@@ -295,8 +298,16 @@ def _render_panel(request: HttpRequest, work_order: WorkOrder, panel: ValvePanel
         "panel": panel,
         "can_record": work_order.status in bench.RECORDING_STATUSES,
         "compare_lift_mm": COMPARE_LIFT_MM,
+        "void_refused": void_refused,
     }
     return render(request, template, context)
+
+
+def render_valve_void_refused(
+    request: HttpRequest, work_order: WorkOrder, record: ShimStackRecord, refusal: object
+) -> HttpResponse:
+    """The valve's page again after a refused void of one of its stacks, the refusal at its form."""
+    return _render_panel(request, work_order, valve_panel(work_order, record.valve), void_refused=refusal)
 
 
 @require_GET
@@ -316,44 +327,66 @@ def stack_post(request: HttpRequest, number: str, valve: str, stage: str) -> Htt
     if stage not in STAGES:
         raise Http404("No such stage.")
     unit_model = work_order.unit.unit_model
-    action = request.POST.get("action", "save")
-    if action.startswith(("add", "remove-", "up-", "down-")):
-        editor = StackEditor.edited(
-            request.POST, stage=stage, unit_model=unit_model, valve=valve, edit=action
+
+    def again(editor: StackEditor, **forms: object) -> HttpResponse:
+        """The panel with this stage's editor as posted (nothing typed lost), and its forms' errors."""
+        panel = valve_panel(work_order, valve, editors={stage: editor})
+        for name, form in forms.items():
+            getattr(panel, name)[stage] = form
+        return _render_panel(request, work_order, panel)
+
+    pressed = StackActionForm(request.POST)
+    if not pressed.is_valid():
+        editor = StackEditor.edited(request.POST, stage=stage, unit_model=unit_model, valve=valve, edit="")
+        editor.problems.extend(pressed.errors["action"])
+        return again(editor)
+    action = pressed.cleaned_data["action"]
+    if pressed.is_row_edit():
+        return again(
+            StackEditor.edited(request.POST, stage=stage, unit_model=unit_model, valve=valve, edit=action)
         )
-        return _render_panel(request, work_order, valve_panel(work_order, valve, editors={stage: editor}))
     if action == "load":
         library = FromLibraryForm(request.POST, prefix=f"library-{stage}", unit_model=unit_model, valve=valve)
         if not library.is_valid():
-            messages.error(request, "Pick a stack from the library first.")
-            return _render_panel(request, work_order, valve_panel(work_order, valve))
+            editor = StackEditor.edited(
+                request.POST, stage=stage, unit_model=unit_model, valve=valve, edit=""
+            )
+            return again(editor, library=library)
         preset = library.cleaned_data["preset"]
         editor = StackEditor.for_record(preset, stage=stage, unit_model=unit_model, valve=valve)
-        version = request.POST.get(f"stack-{stage}-version")
-        if version:
-            editor.form.initial["version"] = version
+        posted = StackEditor.edited(request.POST, stage=stage, unit_model=unit_model, valve=valve, edit="")
+        if posted.form.initial.get("version"):  # the version of the record being edited goes on
+            editor.form.initial["version"] = posted.form.initial["version"]
+        editor.problems = [problem for problem in posted.problems if problem == STALE_FORM]
         messages.info(
             request, f"Started from “{preset.name}”: check it against the stack on the bench, then save."
         )
-        return _render_panel(request, work_order, valve_panel(work_order, valve, editors={stage: editor}))
+        return again(editor)
     if action == "keep" and not request.user.has_perm("specs.add_stackpreset"):
         raise PermissionDenied("You may not add to the stack library.")
     editor = StackEditor(stage=stage, unit_model=unit_model, valve=valve, data=request.POST)
-    if not editor.is_valid():
-        return _render_panel(request, work_order, valve_panel(work_order, valve, editors={stage: editor}))
-    assert editor.values is not None
     if action == "keep":
         keep = PresetForm(request.POST, prefix=f"keep-{stage}")
-        name = keep.data.get(f"keep-{stage}-name", "")
+        stack_ok, name_ok = editor.is_valid(), keep.is_valid()
+        if not (stack_ok and name_ok):
+            return again(editor, keep=keep)
+        assert editor.values is not None
         try:
             preset = stack_preset_save(
-                unit_model=unit_model, valve=valve, name=name, values=editor.values, by=request.user
+                unit_model=unit_model,
+                valve=valve,
+                name=keep.cleaned_data["name"],
+                values=editor.values,
+                by=request.user,
             )
         except ValidationError as error:
-            messages.error(request, " ".join(error.messages))
-        else:
-            messages.success(request, f"Kept in the {unit_model} library as “{preset.name}”.")
-        return _render_panel(request, work_order, valve_panel(work_order, valve, editors={stage: editor}))
+            keep.add_error("name", error.messages)
+            return again(editor, keep=keep)
+        messages.success(request, f"Kept in the {unit_model} library as “{preset.name}”.")
+        return again(editor)
+    if not editor.is_valid():
+        return again(editor)
+    assert editor.values is not None
     record = ShimStackRecord.objects.filter(
         work_order=work_order, valve=valve, stage=stage, voided_at__isnull=True
     ).first()

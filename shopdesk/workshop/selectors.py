@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import datetime
-import re
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
@@ -21,6 +20,7 @@ from shopdesk.customers.models import Unit
 from shopdesk.specs.geometry import shim_stack_for
 from shopdesk.specs.models import ServiceType, StackFields, Valve
 from shopdesk.workshop import flow
+from shopdesk.workshop.converters import JOB_NUMBER
 from shopdesk.workshop.models import OPEN_STATUSES, ServiceRecord, ShimStackRecord, Status, WorkOrder
 
 BOARD_LIMIT_PER_STATUS = 100
@@ -73,8 +73,9 @@ def _person(first: str | None, last: str | None, username: str | None) -> str:
 
 def _job_addresses(url_name: str) -> Callable[[str], str]:
     """reverse() once and fill in each job's number: reverse() for every card was a fifth of the
-    board's time. The marker matches the ``<str:number>`` converter, as a job number does."""
-    marker = "JOBNUMBERMARKER"
+    board's time. The marker is a job number no job has (the ``<job:number>`` converter takes
+    only job numbers), found once in the reversed address."""
+    marker = "0000-0000000"
     before, _, after = reverse(url_name, kwargs={"number": marker}).partition(marker)
     return lambda number: before + quote(number, safe="") + after
 
@@ -230,9 +231,6 @@ def unit_due_dates(unit: Unit, *, today: datetime.date | None = None, soon_days:
     return due_dates
 
 
-JOB_NUMBER = re.compile(r"\d{4}-\d{4,6}")
-
-
 def work_order_from_scan(text: str) -> WorkOrder | None:
     """The job a scanner typed: its number ("2026-0042") or its address from a job card's QR code.
 
@@ -241,7 +239,7 @@ def work_order_from_scan(text: str) -> WorkOrder | None:
     """
     text = text.strip()
     number = None
-    if JOB_NUMBER.fullmatch(text):
+    if JOB_NUMBER.fullmatch(text):  # ASCII digits only, as the <job:number> converter
         number = text
     elif "/jobs/" in text and len(text) < 300:
         path = urlsplit(text if "://" in text or text.startswith("/") else "//" + text).path

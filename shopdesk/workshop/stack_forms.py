@@ -7,20 +7,24 @@ editor unsaved (with htmx, in place), so nothing typed is lost on the way.
 
 from __future__ import annotations
 
+import re
 from collections.abc import Mapping
 from types import SimpleNamespace
 from typing import Any
 
 from django import forms
 from django.forms import formset_factory
+from django.forms.formsets import BaseFormSet, ManagementForm
+from django.utils.functional import cached_property
 
 from shopdesk.calc import CalcInputError
 from shopdesk.calc.plates import LARGEST_SHIM, THICKEST_SHIM, THINNEST_SHIM
 from shopdesk.calc.shims import MOST_LINES, MOST_SHIMS_PER_LINE
+from shopdesk.shop.ids import IdField, RecordChoiceField, id_from
 from shopdesk.shop.quantities import FORCE, PRESSURE, QuantityField
 from shopdesk.specs.geometry import shim_stack_for
 from shopdesk.specs.models import StackFields, StackPreset, UnitModel
-from shopdesk.workshop.bench_forms import VersionedForm
+from shopdesk.workshop.bench_forms import STALE_FORM, VersionedForm
 from shopdesk.workshop.models import ShimStackRecord
 
 MM = {"inputmode": "decimal", "autocomplete": "off"}
@@ -43,8 +47,42 @@ class ShimRowForm(forms.Form):
         return thickness
 
 
+ROWS_DAMAGED = "The rows came back damaged (an old or changed page): check them before saving."
+
+
+class _RowCounts(ManagementForm):
+    """The formset's row counts, ASCII digits as every number the page posts (IntegerField read
+    "٤" and "+4")."""
+
+    TOTAL_FORMS = IdField(widget=forms.HiddenInput)
+    INITIAL_FORMS = IdField(widget=forms.HiddenInput)
+
+
+class _ShimRows(BaseFormSet):
+    default_error_messages = {**BaseFormSet.default_error_messages, "missing_management_form": ROWS_DAMAGED}
+
+    @cached_property
+    def management_form(self) -> ManagementForm:
+        if not self.is_bound:
+            return BaseFormSet.management_form.func(self)
+        form = _RowCounts(self.data, auto_id=self.auto_id, prefix=self.prefix, renderer=self.renderer)
+        form.full_clean()
+        return form
+
+    def full_clean(self) -> None:
+        super().full_clean()
+        # Django says so, then replaces it with "at least 1 form" when it counts no rows.
+        if (
+            self.is_bound
+            and not self.management_form.is_valid()
+            and ROWS_DAMAGED not in self._non_form_errors
+        ):
+            self._non_form_errors.insert(0, ROWS_DAMAGED)
+
+
 ShimRowFormSet = formset_factory(
     ShimRowForm,
+    formset=_ShimRows,
     extra=0,
     min_num=1,
     validate_min=True,
@@ -144,6 +182,7 @@ class StackEditor:
         self.form = StackForm(data, prefix=self.prefix, initial=initial)
         self.rows = ShimRowFormSet(data, prefix=f"{self.prefix}-rows", initial=rows or [{}])
         self.values: dict[str, Any] | None = None
+        self.problems: list[str] = []  # what was wrong with a posted edit, shown above the rows
 
     @property
     def label(self) -> str:
@@ -228,28 +267,79 @@ class StackEditor:
     def edited(
         cls, data: Mapping[str, Any], *, stage: str, unit_model: UnitModel, valve: str, edit: str
     ) -> StackEditor:
-        """The posted editor with one row added, removed or moved; nothing is saved or checked."""
+        """The posted editor with one row added, removed or moved (``edit`` as ``StackActionForm``
+        cleans it; "" for none); nothing is saved or checked. What cannot be done is said above
+        the rows, never done quietly in part."""
         prefix = f"stack-{stage}"
-        try:
-            total = max(0, min(int(data.get(f"{prefix}-rows-TOTAL_FORMS", 0)), MOST_LINES))
-        except (TypeError, ValueError):
-            total = 0
+        problems = []
+        raw_total = data.get(f"{prefix}-rows-TOTAL_FORMS", "")
+        total = id_from(raw_total)
+        if total is None or total > MOST_LINES:
+            # Mangled: keep every row that was posted, and say so.
+            problems.append(ROWS_DAMAGED)
+            total = sum(
+                any(f"{prefix}-rows-{index}-{name}" in data for name in ROW_FIELDS)
+                for index in range(MOST_LINES)
+            )
         rows = [
             {name: data.get(f"{prefix}-rows-{index}-{name}", "") for name in ROW_FIELDS}
             for index in range(total)
         ]
         action, _, where = edit.partition("-")
-        index = int(where) if where.isdigit() else -1
-        if action == "add" and len(rows) < MOST_LINES:
-            rows.append({"od": "", "thickness": "", "count": "1"})
-        elif action == "remove" and 0 <= index < len(rows) and len(rows) > 1:
-            rows.pop(index)
-        elif action == "up" and 0 < index < len(rows):
+        index = int(where) if where else -1
+        if action == "add":
+            if len(rows) < MOST_LINES:
+                rows.append({"od": "", "thickness": "", "count": "1"})
+            else:
+                problems.append(f"A stack has at most {MOST_LINES} rows.")
+        elif action in {"remove", "up", "down"} and not 0 <= index < len(rows):
+            problems.append(
+                "That row is no longer in the stack: nothing moved. Check the rows and try again."
+            )
+        elif action == "remove":
+            if len(rows) > 1:
+                rows.pop(index)
+            else:
+                problems.append("A stack keeps at least one row.")
+        elif action == "up" and index > 0:
             rows[index - 1], rows[index] = rows[index], rows[index - 1]
-        elif action == "down" and 0 <= index < len(rows) - 1:
+        elif action == "down" and index < len(rows) - 1:
             rows[index], rows[index + 1] = rows[index + 1], rows[index]
         initial = {name: data.get(f"{prefix}-{name}", "") for name in StackForm.base_fields}
-        return cls(stage=stage, unit_model=unit_model, valve=valve, initial=initial, rows=rows or [{}])
+        if initial["version"] and id_from(initial["version"]) is None:
+            initial.pop("version")
+            problems.append(STALE_FORM)
+        editor = cls(stage=stage, unit_model=unit_model, valve=valve, initial=initial, rows=rows or [{}])
+        editor.problems = problems
+        return editor
+
+
+ROW_EDIT = re.compile(f"(up|down|remove)-([0-9]{{1,{len(str(MOST_LINES - 1))}}})")
+
+
+class StackActionForm(forms.Form):
+    """Which of the editor's buttons was pressed: save, add a row, move or remove row N, start
+    from the library, keep in the library."""
+
+    action = forms.Field(required=False)  # checked against the buttons only, one message for all
+
+    ACTIONS = ("save", "add", "load", "keep")
+
+    def clean_action(self) -> str:
+        action = self.cleaned_data["action"] or "save"  # Enter in a box, or a page without script
+        match = ROW_EDIT.fullmatch(action) if isinstance(action, str) else None
+        if action in self.ACTIONS or (match and int(match.group(2)) < MOST_LINES):
+            return action
+        raise forms.ValidationError(
+            "That button is not on this page (an old or changed page): nothing was done. Check the stack "
+            "and press the button again."
+        )
+
+    def is_row_edit(self) -> bool:
+        return (
+            self.cleaned_data["action"] == "add"
+            or ROW_EDIT.fullmatch(self.cleaned_data["action"]) is not None
+        )
 
 
 class PresetForm(forms.Form):
@@ -259,7 +349,7 @@ class PresetForm(forms.Form):
 
 
 class FromLibraryForm(forms.Form):
-    preset = forms.ModelChoiceField(queryset=StackPreset.objects.none(), label="Start from the library")
+    preset = RecordChoiceField(queryset=StackPreset.objects.none(), label="Start from the library")
 
     def __init__(self, *args: Any, unit_model: UnitModel, valve: str, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)

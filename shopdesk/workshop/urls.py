@@ -1,6 +1,10 @@
-from django.urls import path
+from django.urls import path, register_converter
 
 from shopdesk.workshop import bench_views, payment_views, revalve_views, views
+from shopdesk.workshop.converters import JobNumberConverter
+
+# <job:number>: a malformed job number is a 404 from the resolver (shopdesk/workshop/converters.py).
+register_converter(JobNumberConverter, "job")
 
 app_name = "workshop"
 
@@ -9,20 +13,20 @@ urlpatterns = [
     path("check-in/quote/", views.quote, name="quote"),
     path("board/", views.status_board, name="board"),
     path("bench/", bench_views.bench_queue, name="bench"),
-    path("jobs/<str:number>/", bench_views.work_order_detail, name="work-order"),
-    path("jobs/<str:number>/move/", views.move, name="move"),
-    path("jobs/<str:number>/take/", bench_views.take, name="take"),
-    path("jobs/<str:number>/oil/<int:chamber_id>/", bench_views.oil_save, name="oil"),
-    path("jobs/<str:number>/spring/<str:stage>/", bench_views.spring_save, name="spring"),
-    path("jobs/<str:number>/parts/", bench_views.part_add, name="part"),
-    path("jobs/<str:number>/labour/", bench_views.labour_save, name="labour"),
-    path("jobs/<str:number>/checks/<int:check_id>/", bench_views.check_set, name="check"),
-    path("jobs/<str:number>/stacks/<str:valve>/", revalve_views.valve_detail, name="valve"),
-    path("jobs/<str:number>/stacks/<str:valve>/<str:stage>/", revalve_views.stack_post, name="stack"),
+    path("jobs/<job:number>/", bench_views.work_order_detail, name="work-order"),
+    path("jobs/<job:number>/move/", views.move, name="move"),
+    path("jobs/<job:number>/take/", bench_views.take, name="take"),
+    path("jobs/<job:number>/oil/<int:chamber_id>/", bench_views.oil_save, name="oil"),
+    path("jobs/<job:number>/spring/<str:stage>/", bench_views.spring_save, name="spring"),
+    path("jobs/<job:number>/parts/", bench_views.part_add, name="part"),
+    path("jobs/<job:number>/labour/", bench_views.labour_save, name="labour"),
+    path("jobs/<job:number>/checks/<int:check_id>/", bench_views.check_set, name="check"),
+    path("jobs/<job:number>/stacks/<str:valve>/", revalve_views.valve_detail, name="valve"),
+    path("jobs/<job:number>/stacks/<str:valve>/<str:stage>/", revalve_views.stack_post, name="stack"),
     path("stack-library/<int:unit_model_id>/", revalve_views.stack_library, name="stack-library"),
-    path("jobs/<str:number>/void/<str:kind>/<int:record_id>/", bench_views.record_void, name="void"),
-    path("jobs/<str:number>/payments/", payment_views.payment_take, name="payment"),
+    path("jobs/<job:number>/void/<str:kind>/<int:record_id>/", bench_views.record_void, name="void"),
+    path("jobs/<job:number>/payments/", payment_views.payment_take, name="payment"),
     path(
-        "jobs/<str:number>/payments/<int:payment_id>/void/", payment_views.payment_void, name="payment-void"
+        "jobs/<job:number>/payments/<int:payment_id>/void/", payment_views.payment_void, name="payment-void"
     ),
 ]

@@ -11,7 +11,6 @@ from django.views.decorators.http import require_GET, require_http_methods, requ
 
 from shopdesk.customers.forms import SetupForm
 from shopdesk.customers.models import Unit
-from shopdesk.specs.models import ServiceType
 from shopdesk.workshop import selectors, services
 from shopdesk.workshop.forms import CheckInForm, MoveForm
 from shopdesk.workshop.models import Status, WorkOrder
@@ -66,10 +65,18 @@ def check_in(request: HttpRequest, unit_id: int) -> HttpResponse:
 @require_POST
 @permission_required("workshop.check_in_workorder", raise_exception=True)
 def quote(request: HttpRequest) -> HttpResponse:
-    """The quote for the ticked services, as the front desk ticks them."""
-    ids = [value for value in request.POST.getlist("job-service_types") if value.isdigit()]
-    chosen = list(ServiceType.objects.filter(pk__in=ids, active=True))
-    return render(request, "workshop/check_in.html#quote", {"quote": services.quote(service_types=chosen)})
+    """The quote for the ticked services, as the front desk ticks them. The ticks go through the
+    check-in form's own field (ids of active services, ASCII digits); a refused tick is named in
+    the quote and nothing is quoted for it."""
+    form = CheckInForm(request.POST, prefix="job")
+    form.is_valid()
+    chosen = form.cleaned_data.get("service_types", [])
+    refused = [] if form.has_error("service_types", "required") else form.errors.get("service_types", [])
+    return render(
+        request,
+        "workshop/check_in.html#quote",
+        {"quote": services.quote(service_types=chosen), "quote_errors": refused},
+    )
 
 
 @require_GET

@@ -189,3 +189,27 @@ def test_a_finished_batch_without_its_pdf_says_it_is_gone(client, front_desk, th
     client.force_login(front_desk)
     response = client.get(reverse("documents:batch-file", args=[batch.pk]))
     assert response.status_code == 404
+
+
+@pytest.mark.parametrize("number", ["\x00", "2026-00\x0042", "٢٠٢٦-٠٠٠١", "2026-0001 ", "x" * 5000])
+def test_a_ticked_value_that_is_no_job_number_is_refused_at_the_ticks(client, front_desk, three_jobs, number):
+    # A NUL went to the number__in query, which PostgreSQL refuses in any text: a 500 there.
+    client.force_login(front_desk)
+    kept = three_jobs["yesterday"].number
+    response = client.post(reverse("documents:batch-new"), {"which": "picked", "numbers": [kept, number]})
+    assert response.status_code == 400
+    assert response.context["form"].has_error("numbers")
+    page = response.content.decode()
+    assert "is not a job number" in page
+    assert f'value="{kept}" checked' in page  # the good tick is kept for the next try
+    assert not PrintBatch.objects.exists()
+
+
+@pytest.mark.parametrize("which", ["", "everything", "today\x00"])
+def test_a_button_value_that_is_neither_print_button_is_refused(client, front_desk, three_jobs, which):
+    # Anything but "picked" printed today's cards before.
+    client.force_login(front_desk)
+    response = client.post(reverse("documents:batch-new"), {"which": which})
+    assert response.status_code == 400
+    assert "Press one of the two print buttons." in response.content.decode()
+    assert not PrintBatch.objects.exists()

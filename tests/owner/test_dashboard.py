@@ -142,8 +142,10 @@ def test_the_owner_sends_a_reminder_from_a_row(client, owner, front_desk, due_sh
     assert row.reminded and row.last_reminder_at == reminder.sent_at
     again = client.post(url, follow=True)
     assert "already sent" in again.content.decode() and len(mail.outbox) == 1
-    # Off-site "next" is ignored.
-    assert client.post(url, {"next": "https://elsewhere.example/"})["Location"] == "/owner/"
+    # Off-site "next" is ignored, and so is one with a control character or spaces (it was
+    # followed as "/owner/%0A" or "%20/owner/", a page that is not there).
+    for value in ("https://elsewhere.example/", "/owner/?list=soon\n", " /owner/?list=soon"):
+        assert client.post(url, {"next": value})["Location"] == "/owner/", value
 
 
 @pytest.mark.django_db

@@ -16,6 +16,7 @@ from django.contrib import admin
 from django.urls import get_resolver, reverse
 
 from shopdesk.workshop import flow
+from shopdesk.workshop.converters import JOB_NUMBER
 from shopdesk.workshop.models import Status, WorkOrder, WorkOrderEvent
 from tests.accounts.test_access import _walk
 from tests.conftest import finish_bench_work
@@ -58,7 +59,7 @@ ACCESS: dict[str, tuple[str, set[str], int]] = {
     "workshop:valve": ("get", STAFF, 200),
     "workshop:stack": ("post", BENCH, 200),
     "workshop:stack-library": ("get", STAFF, 200),
-    "workshop:void": ("post", BENCH, 302),
+    "workshop:void": ("post", BENCH, 200),  # no reason given: the page again, the refusal at the form
     "workshop:payment": ("post", COUNTER, 200),  # the empty form again, its errors at the fields
     "workshop:payment-void": ("post", {OWNER}, 200),  # a payment taken in error: the owner's
     "stock:list": ("get", STAFF, 200),
@@ -260,6 +261,16 @@ MARKERS = {
 }
 
 
+def _guessed_url(name: str, kwargs: dict[str, object]) -> str:
+    """The address with a guessed value. A guessed job number that is not one ("OIL-5WT") is not
+    reversed by the <job:number> converter: it is put in the path by hand, and the resolver
+    answers 404 before any view or query."""
+    number = kwargs.get("number")
+    if number is None or JOB_NUMBER.fullmatch(str(number)):
+        return reverse(name, kwargs=kwargs)
+    return reverse(name, kwargs={**kwargs, "number": "2099-9999"}).replace("/2099-9999/", f"/{number}/")
+
+
 @pytest.mark.django_db
 def test_guessed_ids_and_ids_of_another_record_type_show_nothing(client, owner, shop) -> None:
     from shopdesk.customers.models import Customer, Unit
@@ -303,7 +314,7 @@ def test_guessed_ids_and_ids_of_another_record_type_show_nothing(client, owner, 
             for guess, other in guesses.items():
                 kwargs = {p: shop[p] for p in params}
                 kwargs[param] = guess
-                url = reverse(name, kwargs=kwargs)
+                url = _guessed_url(name, kwargs)
                 response = client.get(url)
                 tried += 1
                 assert response.status_code == 404, f"{url} ({name}) answered {response.status_code}"
@@ -466,7 +477,7 @@ def test_guessed_ids_and_another_jobs_ids_change_nothing_when_posted(client, own
                     guesses[str(other_ids[param])] = "another job's"
             for guess, whose in guesses.items():
                 kwargs = {p: shop[p] for p in params} | {param: guess}
-                url = reverse(name, kwargs=kwargs)
+                url = _guessed_url(name, kwargs)
                 response = client.post(url, body)
                 tried.add((name, param, whose))
                 assert response.status_code == 404, f"POST {url} ({name}) answered {response.status_code}"

@@ -423,3 +423,69 @@ def test_the_job_page_shows_the_rules_answers_from_the_records_it_read(
         f"{oil_part.name}, {lowers.name} (mL)",
         "Extra labour, 30 min",
     ]
+
+
+# A refused void is the page again (200) with the refusal at the record's void form, the reason
+# typed kept; before, it was a redirect with a message at the top of the page and the reason lost.
+
+
+def _oil_record(on_bench, technician, oil_part):
+    return services.oil_record_save(
+        work_order=on_bench,
+        chamber=_chamber(on_bench, "damper"),
+        by=technician,
+        values={"filled_ml": 95.0, "oil_part": oil_part},
+    )
+
+
+@pytest.mark.parametrize("reason", ["", "   ", "r" * 201])
+def test_a_void_without_a_usable_reason_is_refused_at_its_form(
+    client, technician, on_bench, oil_part, reason
+) -> None:
+    record = _oil_record(on_bench, technician, oil_part)
+    client.force_login(technician)
+    response = client.post(
+        reverse("workshop:void", args=[on_bench.number, "oil", record.pk]), {"reason": reason}
+    )
+    assert response.status_code == 200
+    refused = response.context["void_refused"]
+    assert (refused.kind, refused.record_id, refused.shown) == ("oil", record.pk, True)
+    assert refused.form.has_error("reason")
+    html = response.content.decode()
+    form_start = html.index(f'action="/jobs/{on_bench.number}/void/oil/{record.pk}/"')
+    assert 'class="errorlist' in html[form_start : html.index("</form>", form_start)]
+    record.refresh_from_db()
+    assert not record.is_void
+
+
+def test_voiding_a_record_already_void_says_so_above_the_records(
+    client, technician, on_bench, oil_part
+) -> None:
+    record = _oil_record(on_bench, technician, oil_part)
+    services.record_void(record=record, reason="Wrong chamber", by=technician)
+    client.force_login(technician)
+    url = reverse("workshop:void", args=[on_bench.number, "oil", record.pk])
+    response = client.post(url, {"reason": "again"}, headers={"HX-Request": "true"})
+    assert response.status_code == 200
+    assert response.context["void_refused"].shown is False  # no void button for a void record
+    assert "Not voided: This record is already void." in response.content.decode()
+    record.refresh_from_db()
+    assert record.void_reason == "Wrong chamber"
+
+
+def test_a_refused_stack_void_is_the_valve_page_again(client, technician, on_bench) -> None:
+    from shopdesk.workshop.models import ShimStackRecord
+    from tests.workshop.test_revalve import BEFORE, _post, _url
+
+    client.force_login(technician)
+    assert client.post(_url(on_bench), _post(BEFORE)).status_code == 302
+    record = ShimStackRecord.objects.get()
+    client.force_login(technician)
+    response = client.post(
+        reverse("workshop:void", args=[on_bench.number, "stack", record.pk]), {"reason": " "}
+    )
+    assert response.status_code == 200
+    assert response.context["panel"].valve == "rebound"
+    assert response.context["void_refused"].form.has_error("reason")
+    record.refresh_from_db()
+    assert not record.is_void

@@ -229,3 +229,88 @@ def test_the_job_page_keeps_its_query_count_with_stacks(
         assert client.get(on_bench.get_absolute_url()).status_code == 200
     with django_assert_max_num_queries(25):
         assert client.get(reverse("workshop:valve", args=[on_bench.number, VALVE])).status_code == 200
+
+
+# The editor's buttons and hidden values as posted: refused at the editor, never a 500, nothing
+# typed lost, nothing saved.
+
+
+@pytest.mark.parametrize(
+    "action", ["remove-²", "up-٣", "down-99", "remove-1x", "sideways-1", "save\x00", "x" * 30]
+)
+def test_a_button_that_is_not_on_the_page_is_refused_above_the_rows(
+    client, technician, on_bench, action
+) -> None:
+    # "remove-²" was a 500 ("²".isdigit() is true, int("²") raises); "sideways-1" saved the stack.
+    client.force_login(technician)
+    response = client.post(_url(on_bench), _post(BEFORE, action=action))
+    assert response.status_code == 200
+    html = response.content.decode()
+    assert "That button is not on this page" in html or "That row is no longer in the stack" in html
+    assert 'name="stack-before-rows-3-od" value="10"' in html  # the rows as typed
+    assert not ShimStackRecord.objects.exists()
+
+
+def test_moving_a_row_that_is_not_there_says_so_and_moves_nothing(client, technician, on_bench) -> None:
+    client.force_login(technician)
+    html = client.post(_url(on_bench), _post(BEFORE, action="remove-7")).content.decode()
+    assert "That row is no longer in the stack: nothing moved." in html
+    assert 'name="stack-before-rows-TOTAL_FORMS" value="4"' in html
+
+
+@pytest.mark.parametrize("total", ["٤", "+4", "4 ", "", "999"])
+def test_a_damaged_row_count_keeps_the_rows_posted_and_says_so(client, technician, on_bench, total) -> None:
+    # int() read "٤" and "+4"; "999" was cut to the most rows quietly, "" lost every row.
+    client.force_login(technician)
+    data = _post(BEFORE, action="add") | {"stack-before-rows-TOTAL_FORMS": total}
+    html = client.post(_url(on_bench), data).content.decode()
+    assert "The rows came back damaged" in html
+    assert 'name="stack-before-rows-3-thickness" value="0.15"' in html
+    assert 'name="stack-before-rows-4-od"' in html  # and the row asked for was added
+
+
+def test_load_without_a_pick_is_refused_at_the_pick_and_keeps_the_rows(client, technician, on_bench) -> None:
+    client.force_login(technician)
+    for picked in ("", "١", "9" * 30):
+        data = _post(BEFORE, action="load") | {"library-before-preset": picked}
+        response = client.post(_url(on_bench), data)
+        assert response.status_code == 200
+        html = response.content.decode()
+        assert 'class="errorlist' in html and "library-before-preset" in html, picked
+        assert 'name="stack-before-rows-3-od" value="10"' in html, picked  # nothing typed lost
+
+
+def test_load_carries_only_a_real_version_on(client, technician, on_bench) -> None:
+    client.force_login(technician)
+    data = _post(BEFORE, action="keep") | {"keep-before-name": "Baseline"}
+    client.post(_url(on_bench), data)
+    preset = StackPreset.objects.get()
+    html = client.post(
+        _url(on_bench), {"action": "load", "library-before-preset": preset.pk, "stack-before-version": "٣"}
+    ).content.decode()
+    assert "reload the job page and enter the values again" in html
+    assert 'name="stack-before-version" value="٣"' not in html
+
+
+@pytest.mark.parametrize("name", ["", "   ", "n" * 81])
+def test_keeping_a_stack_under_a_bad_name_is_refused_at_the_name(client, technician, on_bench, name) -> None:
+    # The name skipped its form: 81 characters were cut to 80 quietly.
+    client.force_login(technician)
+    data = _post(BEFORE, action="keep") | {"keep-before-name": name}
+    response = client.post(_url(on_bench), data)
+    assert response.status_code == 200
+    assert response.context["panel"].keep["before"].has_error("name")
+    assert not StackPreset.objects.exists()
+
+
+@pytest.mark.parametrize("total", ["٤", "+4", "", "4.0"])
+def test_saving_with_a_damaged_row_count_is_refused_above_the_rows(
+    client, technician, on_bench, total
+) -> None:
+    # Django's formset read its counts with IntegerField: "٤" and "+4" were taken as 4.
+    client.force_login(technician)
+    data = _post(BEFORE) | {"stack-before-rows-TOTAL_FORMS": total}
+    response = client.post(_url(on_bench), data)
+    assert response.status_code == 200
+    assert "The rows came back damaged" in response.content.decode()
+    assert not ShimStackRecord.objects.exists()

@@ -69,7 +69,7 @@ def stack_preset_save(
     preset = StackPreset(
         unit_model=unit_model,
         valve=valve,
-        name=name[:80],
+        name=name,
         notes=notes,
         created_by=by,
         **{field: values[field] for field in StackFields.STACK_FIELDS},
