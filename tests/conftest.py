@@ -209,3 +209,22 @@ def finish_bench_work(work_order, technician, oil_part) -> None:
     services.labour_add(work_order=work_order, technician=technician, minutes=75, by=technician)
     for check in work_order.final_checks.all():
         services.final_check_set(check=check, done=True, by=technician)
+
+
+def finished_print_batch(work_order, by, created_at=None):
+    """A batch of job cards that has finished printing ``work_order``'s card, its PDF stored
+    (the security tests fetch its pages and its file)."""
+    from django.utils import timezone
+
+    from shopdesk.documents.models import PrintBatch
+
+    return PrintBatch.objects.create(
+        created_at=created_at or timezone.now(),
+        created_by=by,
+        numbers=[work_order.number],
+        base_url="http://testserver/",
+        state=PrintBatch.State.DONE,
+        done_count=1,
+        file_name="job-cards-1.pdf",
+        pdf=b"%PDF-1.7 a batch",
+    )

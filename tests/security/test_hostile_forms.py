@@ -31,7 +31,7 @@ from django.urls import Resolver404, get_resolver, resolve, reverse
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from tests.conftest import finish_bench_work
+from tests.conftest import finish_bench_work, finished_print_batch
 
 pytestmark = pytest.mark.django_db
 
@@ -409,20 +409,10 @@ def test_hostile_values_never_break_a_search_or_filter(
 
 
 def _page_kwargs(work_order, part) -> dict[str, object]:
-    from shopdesk.documents.models import PrintBatch
     from shopdesk.owner.services import unsubscribe_token
 
     unit = work_order.unit
-    batch = PrintBatch.objects.create(
-        created_at=work_order.checked_in_at,
-        created_by=work_order.checked_in_by,
-        numbers=[work_order.number],
-        base_url="http://testserver/",
-        state=PrintBatch.State.DONE,
-        done_count=1,
-        file_name="job-cards-1.pdf",
-        pdf=b"%PDF-1.7 a batch",
-    )
+    batch = finished_print_batch(work_order, work_order.checked_in_by, created_at=work_order.checked_in_at)
     return {
         "customer_id": unit.customer_id,
         "unit_id": unit.pk,

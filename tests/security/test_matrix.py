@@ -19,7 +19,7 @@ from shopdesk.workshop import flow
 from shopdesk.workshop.converters import JOB_NUMBER
 from shopdesk.workshop.models import Status, WorkOrder, WorkOrderEvent
 from tests.accounts.test_access import _walk
-from tests.conftest import finish_bench_work
+from tests.conftest import finish_bench_work, finished_print_batch
 
 ANON, DESK, TECH, OWNER = "anonymous", "front_desk", "technician", "owner"
 ROLES = (ANON, DESK, TECH, OWNER)
@@ -104,9 +104,7 @@ PATTERNS = sorted({(pattern, name) for pattern, name in _walk(get_resolver().url
 @pytest.fixture
 def shop(work_order, technician, front_desk, oil_part):
     """One of each kind of record, so that every URL can be filled in with a real one."""
-    from django.utils import timezone
 
-    from shopdesk.documents.models import PrintBatch
     from shopdesk.owner.models import DueService
     from shopdesk.owner.services import due_refresh, unsubscribe_token
     from shopdesk.workshop.services.payments import payment_take
@@ -115,16 +113,7 @@ def shop(work_order, technician, front_desk, oil_part):
     payment = payment_take(work_order=work_order, amount=Decimal("10.00"), method="cash", by=front_desk)
     unit = work_order.unit
     oil_record = work_order.oilrecord_set.first()
-    batch = PrintBatch.objects.create(
-        created_at=timezone.now(),
-        created_by=front_desk,
-        numbers=[work_order.number],
-        base_url="http://testserver/",
-        state=PrintBatch.State.DONE,
-        done_count=1,
-        file_name="job-cards-1.pdf",
-        pdf=b"%PDF-1.7 a batch",
-    )
+    batch = finished_print_batch(work_order, front_desk)
     due_refresh(unit=unit)
     return {
         "batch_id": batch.pk,
